@@ -1,0 +1,11 @@
+export { logGamma, gammaP, gammaQ, betaI } from './special-functions.js';
+export { erfc, normalCdf, normalSf, normalPdf, normalQuantile } from './normal.js';
+export { chiSquareCdf, chiSquareSf } from './chi-square.js';
+export { studentTSf, studentTCdf } from './student-t.js';
+export { fSf, fCdf } from './f-dist.js';
+export { correlationMatrix, partialCorrelation } from './correlation.js';
+export { fisherZTest, fisherZStatistic } from './fisher-z.js';
+export { likelihoodRatioTest } from './likelihood-ratio.js';
+export { logisticRegression, softplus, type LogisticOptions, type LogisticResult } from './logistic-regression.js';
+export { softmaxRegression, type SoftmaxOptions, type SoftmaxResult } from './softmax-regression.js';
+export { mean, variance, standardDeviation, quantile } from './descriptive.js';
