@@ -1,0 +1,182 @@
+import type { Frame } from '../frame/frame.js';
+import { lstsq } from '../linalg/lstsq.js';
+import type { Matrix } from '../linalg/matrix.js';
+import { fSf } from '../stats/f-dist.js';
+import { jarqueBera } from './gaussianity.js';
+import type { LearnerName } from './learner.js';
+
+export type ConcreteLearner = Exclude<LearnerName, 'auto'>;
+
+/** Per-column diagnostics behind the choice. */
+export interface AutoDiagnostics {
+  readonly rows: number;
+  readonly columns: number;
+  readonly discrete: number;
+  /** Continuous columns whose regression on the others gains from quadratic and cubic terms. */
+  readonly nonlinear: number;
+  /** Continuous columns whose linear-regression residuals fail the Jarque–Bera test. */
+  readonly nonGaussian: number;
+  /** Continuous columns diagnosed. */
+  readonly diagnosed: number;
+}
+
+/** The learner picked and the reasons, in the order the rule applied them. */
+export interface AutoChoice {
+  readonly learner: ConcreteLearner;
+  readonly reasons: readonly string[];
+  readonly diagnostics: AutoDiagnostics;
+}
+
+/** Thresholds of the rule (all common practice or chosen on simulated data; see `chooseLearner`). */
+export const AUTO_RULE = {
+  /** Above this share of binary/categorical columns → PC. */
+  maxDiscreteShare: 0.5,
+  /** Fewer rows than this, or than `rowsPerColumn`·d → PC (rule of thumb, common practice). */
+  minRows: 200,
+  rowsPerColumn: 10,
+  /** A column is nonlinear when polynomial terms cut the linear RSS by this share and the F test rejects at `testLevel`. */
+  minGain: 0.05,
+  /** A column is non-Gaussian when the Jarque–Bera test rejects at `testLevel`. */
+  testLevel: 0.001,
+  /** Share of diagnosed columns that must be nonlinear to choose the nonlinear learner. */
+  nonlinearShare: 0.25,
+  /** Share of diagnosed columns that must be non-Gaussian to choose DirectLiNGAM. */
+  nonGaussianShare: 0.5,
+  /** Diagnostics use at most this many rows (evenly spaced) and regressors (most correlated). */
+  maxRows: 2000,
+  maxRegressors: 10,
+} as const;
+
+/**
+ * The `auto` rule. It takes the (standardised, imputed) frame and, in order:
+ * 1. more than half the columns binary or categorical → PC (its likelihood-ratio tests
+ *    model discrete variables; the continuous learners treat them as numbers);
+ * 2. n < 200 or n < 10·d → PC (too few rows for the diagnostics and the score-based
+ *    learners; a rule of thumb, common practice);
+ * 3. for each continuous column, regress it on its (up to 10 most correlated) continuous
+ *    companions, linearly and with added squares and cubes; the column is nonlinear when
+ *    the polynomial fit cuts the residual sum of squares by ≥ 5% and the F test rejects at
+ *    0.001 (a RESET-style linearity check, Ramsey 1969). At least a quarter nonlinear →
+ *    'mlp-notears' (when it is available, else PC);
+ * 4. linear, but some column discrete → PC;
+ * 5. linear and at least half the linear-regression residuals non-Gaussian by the
+ *    Jarque–Bera test at 0.001 (Jarque & Bera 1980) → DirectLiNGAM (the linear
+ *    non-Gaussian model identifies the full DAG, Shimizu et al. 2006);
+ * 6. otherwise (linear Gaussian) → PC: only the Markov equivalence class is identifiable,
+ *    and a CPDAG says so instead of guessing directions.
+ */
+export function chooseLearner(frame: Frame, available: ReadonlySet<string>): AutoChoice {
+  const d = frame.columns.length;
+  const n = frame.nRows;
+  const cont: number[] = [];
+  for (let j = 0; j < d; j++) if (frame.columns[j].kind === 'continuous') cont.push(j);
+  const discrete = d - cont.length;
+  const base = { rows: n, columns: d, discrete, nonlinear: 0, nonGaussian: 0, diagnosed: 0 };
+  const reasons: string[] = [];
+  if (discrete > AUTO_RULE.maxDiscreteShare * d) {
+    reasons.push(`${discrete} of ${d} columns are binary or categorical: PC with likelihood-ratio tests models them directly`);
+    return { learner: 'pc', reasons, diagnostics: base };
+  }
+  if (n < AUTO_RULE.minRows || n < AUTO_RULE.rowsPerColumn * d) {
+    reasons.push(`only ${n} rows for ${d} columns (fewer than ${AUTO_RULE.minRows} or ${AUTO_RULE.rowsPerColumn} per column): PC needs the fewest assumptions`);
+    return { learner: 'pc', reasons, diagnostics: base };
+  }
+  if (cont.length < 2) {
+    reasons.push('fewer than two continuous columns: no linearity or Gaussianity diagnostics possible, PC');
+    return { learner: 'pc', reasons, diagnostics: base };
+  }
+  const diag = diagnose(frame, cont);
+  const diagnostics = { ...base, ...diag };
+  const k = diag.diagnosed;
+  if (diag.nonlinear >= AUTO_RULE.nonlinearShare * k) {
+    const why = `${diag.nonlinear} of ${k} continuous columns depend nonlinearly on the others (polynomial terms cut the residual variance by ≥ ${AUTO_RULE.minGain * 100}%, F test p < ${AUTO_RULE.testLevel})`;
+    if (available.has('mlp-notears')) {
+      reasons.push(`${why}: the MLP learner models nonlinear mechanisms`);
+      return { learner: 'mlp-notears', reasons, diagnostics };
+    }
+    reasons.push(`${why}, but the nonlinear learner is not available: PC`);
+    return { learner: 'pc', reasons, diagnostics };
+  }
+  reasons.push(`relations look linear (${diag.nonlinear} of ${k} continuous columns gain from polynomial terms)`);
+  if (discrete > 0) {
+    reasons.push(`${discrete} binary or categorical column(s): PC, whose tests handle them (DirectLiNGAM assumes continuous variables)`);
+    return { learner: 'pc', reasons, diagnostics };
+  }
+  if (diag.nonGaussian >= AUTO_RULE.nonGaussianShare * k) {
+    reasons.push(
+      `${diag.nonGaussian} of ${k} linear-regression residuals are non-Gaussian (Jarque–Bera p < ${AUTO_RULE.testLevel}): DirectLiNGAM identifies the full DAG`,
+    );
+    return { learner: 'direct-lingam', reasons, diagnostics };
+  }
+  reasons.push(
+    `${diag.nonGaussian} of ${k} residuals are non-Gaussian: linear Gaussian data identify only the equivalence class, so PC returns a CPDAG`,
+  );
+  return { learner: 'pc', reasons, diagnostics };
+}
+
+function diagnose(frame: Frame, cont: readonly number[]): { nonlinear: number; nonGaussian: number; diagnosed: number } {
+  const nAll = frame.nRows;
+  const m = Math.min(nAll, AUTO_RULE.maxRows);
+  const rows = new Int32Array(m);
+  for (let r = 0; r < m; r++) rows[r] = Math.floor((r * nAll) / m);
+  const c = cont.length;
+  // Column-major standardised copies of the continuous columns on the chosen rows.
+  const z: Float64Array[] = [];
+  for (const j of cont) {
+    const v = frame.columns[j].values;
+    const w = new Float64Array(m);
+    let mu = 0;
+    for (let r = 0; r < m; r++) mu += v[rows[r]];
+    mu /= m;
+    let s = 0;
+    for (let r = 0; r < m; r++) {
+      w[r] = v[rows[r]] - mu;
+      s += w[r] * w[r];
+    }
+    const inv = s > 0 ? 1 / Math.sqrt(s / m) : 0;
+    for (let r = 0; r < m; r++) w[r] *= inv;
+    z.push(w);
+  }
+  let nonlinear = 0;
+  let nonGaussian = 0;
+  let diagnosed = 0;
+  const corr = new Float64Array(c);
+  for (let a = 0; a < c; a++) {
+    const y = z[a];
+    let yy = 0;
+    for (let r = 0; r < m; r++) yy += y[r] * y[r];
+    if (yy === 0) continue;
+    for (let b = 0; b < c; b++) {
+      let s = 0;
+      if (b !== a) for (let r = 0; r < m; r++) s += y[r] * z[b][r];
+      corr[b] = Math.abs(s);
+    }
+    const others: number[] = [];
+    for (let b = 0; b < c; b++) if (b !== a) others.push(b);
+    others.sort((u, v) => corr[v] - corr[u] || u - v);
+    const q = Math.min(AUTO_RULE.maxRegressors, others.length);
+    const lin: Matrix = { rows: m, cols: q, data: new Float64Array(m * q) };
+    const poly: Matrix = { rows: m, cols: 3 * q, data: new Float64Array(m * 3 * q) };
+    for (let r = 0; r < m; r++) {
+      for (let t = 0; t < q; t++) {
+        const v = z[others[t]][r];
+        lin.data[r * q + t] = v;
+        poly.data[r * 3 * q + 3 * t] = v;
+        poly.data[r * 3 * q + 3 * t + 1] = v * v;
+        poly.data[r * 3 * q + 3 * t + 2] = v * v * v;
+      }
+    }
+    const fl = lstsq(lin, y);
+    const fp = lstsq(poly, y);
+    diagnosed++;
+    const df1 = 2 * q;
+    const df2 = m - 3 * q - 1;
+    if (df2 > 0 && fl.rss > 0) {
+      const gain = 1 - fp.rss / fl.rss;
+      const f = ((fl.rss - fp.rss) / df1) / (Math.max(fp.rss, 1e-300) / df2);
+      if (gain >= AUTO_RULE.minGain && fSf(f, df1, df2) < AUTO_RULE.testLevel) nonlinear++;
+    }
+    if (jarqueBera(fl.residuals).pValue < AUTO_RULE.testLevel) nonGaussian++;
+  }
+  return { nonlinear, nonGaussian, diagnosed };
+}
