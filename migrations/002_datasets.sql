@@ -27,6 +27,7 @@ CREATE TABLE dataset_columns (
   column_ident  text NOT NULL CHECK (column_ident ~ '^c[0-9]+$'),
   kind          text NOT NULL CHECK (kind IN ('continuous', 'binary', 'categorical')),
   levels        jsonb,
+  levels_declared boolean NOT NULL DEFAULT false,
   inference     text NOT NULL DEFAULT '',
   PRIMARY KEY (dataset_id, position),
   UNIQUE (dataset_id, name)
@@ -45,3 +46,16 @@ CREATE TABLE dataset_batches (
   created_at    timestamptz NOT NULL DEFAULT now(),
   PRIMARY KEY (dataset_id, batch)
 );
+
+-- Deleting a dataset (directly, or through its workspace) drops its row table in the same
+-- transaction, so no orphaned ds_… table is left behind. table_name is a generated name
+-- (checked above), quoted with %I.
+CREATE FUNCTION drop_dataset_table() RETURNS trigger LANGUAGE plpgsql AS $$
+BEGIN
+  EXECUTE format('DROP TABLE IF EXISTS %I', OLD.table_name);
+  RETURN OLD;
+END
+$$;
+
+CREATE TRIGGER datasets_drop_table AFTER DELETE ON datasets
+  FOR EACH ROW EXECUTE FUNCTION drop_dataset_table();
