@@ -31,10 +31,10 @@ export const configSchema = z.object({
       .regex(/^fk_[A-Za-z0-9]{8,32}_[A-Za-z0-9_-]{32,128}$/, 'must look like fk_<8-32 letters or digits>_<32-128 url-safe characters>')
       .optional(),
   ),
-  /** Largest accepted body for JSON requests and uploads, in bytes. Default 256 MiB. */
-  FULCRUM_BODY_LIMIT_BYTES: z.coerce.number().int().positive().default(256 * 1024 * 1024),
-  /** Largest accepted body for JSON requests, in bytes. Default 16 MiB. */
-  FULCRUM_JSON_LIMIT_BYTES: z.coerce.number().int().positive().default(16 * 1024 * 1024),
+  /** Largest accepted JSON (or other buffered) request body, in bytes. Default 16 MiB. */
+  FULCRUM_BODY_LIMIT_BYTES: z.coerce.number().int().positive().default(16 * 1024 * 1024),
+  /** Largest accepted streamed upload (text/csv body or multipart file), in bytes. Default 1 GiB. */
+  FULCRUM_UPLOAD_LIMIT_BYTES: z.coerce.number().int().positive().default(1024 * 1024 * 1024),
   /** Requests allowed per client (key or address) per window. 0 switches the limit off. Default 600. */
   FULCRUM_RATE_LIMIT_MAX: z.coerce.number().int().min(0).default(600),
   /** Rate-limit window in milliseconds. Default 60000. */

@@ -6,7 +6,7 @@ export interface KeyView {
   readonly id: string;
   readonly prefix: string;
   readonly name: string;
-  readonly scopes: readonly string[];
+  readonly scopes: string[];
   readonly createdAt: string;
   readonly revokedAt: string | null;
 }
@@ -17,7 +17,7 @@ export function toKeyView(k: ApiKeyRow): KeyView {
     id: k.id,
     prefix: k.prefix,
     name: k.name,
-    scopes: k.scopes,
+    scopes: [...k.scopes],
     createdAt: k.createdAt.toISOString(),
     revokedAt: k.revokedAt ? k.revokedAt.toISOString() : null,
   };

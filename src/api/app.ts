@@ -1,0 +1,127 @@
+/**
+ * The app factory. It only composes, in this order:
+ *   1. the error handler and zod compilers (so every later plugin's errors map to problem+json),
+ *   2. external plugins (security headers, sensible, rate limit, OpenAPI) — before routes, so
+ *      their hooks and the document cover every route,
+ *   3. app plugins: database handle, repositories, metrics,
+ *   4. routes: operations at the root, the API under /v1 behind the auth hook.
+ * The caller owns the database and closes it after `app.close()`.
+ */
+import helmet from '@fastify/helmet';
+import rateLimit from '@fastify/rate-limit';
+import sensible from '@fastify/sensible';
+import Fastify, { type FastifyInstance, type FastifyServerOptions } from 'fastify';
+import { serializerCompiler, validatorCompiler, type ZodTypeProvider } from 'fastify-type-provider-zod';
+import { Redis } from 'ioredis';
+import type { Config } from '../config.js';
+import { apiError } from '../errors/catalogue.js';
+import type { Db } from '../store/db.js';
+import { createKeysRepository } from '../store/keys-repository.js';
+import { createWorkspacesRepository } from '../store/workspaces-repository.js';
+import { loggerOptions } from './logger.js';
+import { installErrorHandler } from './plugins/error-handler.js';
+import { createMetrics, installMetrics, type AppMetrics } from './plugins/metrics.js';
+import { installOpenApi } from './plugins/openapi.js';
+import { healthRoutes } from './routes/health-routes.js';
+import { v1Routes } from './routes/v1-routes.js';
+
+/** What buildApp needs. */
+export interface BuildAppOptions {
+  /** Parsed configuration (limits, rate limit, log level, REDIS_URL). */
+  config: Config;
+  /** An opened, migrated database. Owned by the caller. */
+  db: Db;
+  /**
+   * Redis client for readiness. Default: a client on `config.REDIS_URL` when set (closed with the
+   * app), else none. Pass `null` to skip Redis even when configured.
+   */
+  redis?: Redis | null;
+  /** fastify logger setting. Default: pino with `loggerOptions(config)`. */
+  logger?: FastifyServerOptions['logger'];
+  /** Service version shown in the OpenAPI document. */
+  version?: string;
+}
+
+declare module 'fastify' {
+  interface FastifyInstance {
+    /** The database handle (owned by whoever built the app). */
+    db: Db;
+    /** Prometheus metrics of this app; the dataset routes increment `rowsIngested`. */
+    metrics: AppMetrics;
+    /** Mark the app as shutting down: /readyz answers 503 from then on. */
+    beginShutdown(): void;
+  }
+}
+
+/** Build the HTTP app (not listening; call `listen`, or use `inject`/supertest in tests). */
+export async function buildApp(options: BuildAppOptions): Promise<FastifyInstance> {
+  const { config, db } = options;
+  const app = Fastify({
+    logger: options.logger ?? loggerOptions(config),
+    bodyLimit: config.FULCRUM_BODY_LIMIT_BYTES,
+    requestIdHeader: 'x-request-id',
+    // Streamed uploads can take minutes; do not cut them off.
+    requestTimeout: 0,
+    return503OnClosing: true,
+  }).withTypeProvider<ZodTypeProvider>();
+
+  // 1. Error mapping and zod compilers.
+  app.setValidatorCompiler(validatorCompiler);
+  app.setSerializerCompiler(serializerCompiler);
+  installErrorHandler(app, { bodyLimit: config.FULCRUM_BODY_LIMIT_BYTES });
+
+  // 2. External plugins.
+  await app.register(helmet, {
+    contentSecurityPolicy: {
+      directives: {
+        defaultSrc: ["'self'"],
+        scriptSrc: ["'self'"],
+        styleSrc: ["'self'", "'unsafe-inline'"],
+        imgSrc: ["'self'", 'data:'],
+      },
+    },
+  });
+  await app.register(sensible);
+  if (config.FULCRUM_RATE_LIMIT_MAX > 0) {
+    await app.register(rateLimit, {
+      max: config.FULCRUM_RATE_LIMIT_MAX,
+      timeWindow: config.FULCRUM_RATE_LIMIT_WINDOW_MS,
+      // One budget per key (its public prefix), else per client address.
+      keyGenerator: (request) => {
+        const m = /^Bearer\s+fk_([A-Za-z0-9]+)_/i.exec(String(request.headers.authorization ?? ''));
+        return m ? `key:${m[1]}` : `ip:${request.ip}`;
+      },
+      errorResponseBuilder: (_request, context) =>
+        apiError('ERR_REQUEST_RATE_LIMITED', {
+          max: context.max,
+          windowMs: config.FULCRUM_RATE_LIMIT_WINDOW_MS,
+          retryAfterS: Math.ceil(context.ttl / 1000),
+        }),
+    });
+  }
+  await installOpenApi(app, options.version ?? '0.1.0');
+
+  // 3. App plugins: database, repositories, metrics.
+  let shuttingDown = false;
+  const redis = options.redis !== undefined ? options.redis : config.REDIS_URL ? new Redis(config.REDIS_URL, { lazyConnect: true, maxRetriesPerRequest: 1, enableOfflineQueue: true }) : null;
+  const ownsRedis = options.redis === undefined && redis !== null;
+  const metrics = createMetrics();
+  const keys = createKeysRepository(db);
+  const workspaces = createWorkspacesRepository(db);
+  app.decorate('db', db);
+  app.decorate('metrics', metrics);
+  app.decorate('beginShutdown', () => {
+    shuttingDown = true;
+  });
+  installMetrics(app, metrics);
+  app.addHook('onClose', async () => {
+    shuttingDown = true;
+    if (ownsRedis && redis) redis.disconnect();
+  });
+
+  // 4. Routes.
+  await app.register(healthRoutes, { db, redis, isShuttingDown: () => shuttingDown });
+  await app.register(v1Routes, { prefix: '/v1', deps: { db, keys, workspaces }, config, metrics });
+
+  return app;
+}

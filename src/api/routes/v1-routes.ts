@@ -1,0 +1,25 @@
+/**
+ * Everything under /v1: one auth hook, then the resources. Only JSON (and, in the datasets
+ * context, CSV and multipart) bodies are accepted; any other content type answers 415.
+ */
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import type { KeyDeps } from '../../app/keys/key-use-cases.js';
+import type { Config } from '../../config.js';
+import { installAuth } from '../plugins/auth.js';
+import type { AppMetrics } from '../plugins/metrics.js';
+import { datasetsRoutes } from './datasets-routes.js';
+import { keysRoutes } from './keys-routes.js';
+
+/** Options of the /v1 context. */
+export interface V1Options {
+  deps: KeyDeps;
+  config: Config;
+  metrics: AppMetrics;
+}
+
+export const v1Routes: FastifyPluginAsyncZod<V1Options> = async (v1, opts) => {
+  v1.removeContentTypeParser('text/plain');
+  installAuth(v1, opts.deps.keys);
+  await v1.register(keysRoutes, { deps: opts.deps });
+  await v1.register(datasetsRoutes, { db: opts.deps.db, config: opts.config, metrics: opts.metrics });
+};
