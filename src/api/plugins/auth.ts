@@ -17,6 +17,8 @@ declare module 'fastify' {
   interface FastifyContextConfig {
     /** Scope a /v1 route needs. */
     scope?: Scope;
+    /** Media types the route's body may have (quoted in 415 answers). Default application/json. */
+    accepts?: readonly string[];
   }
 }
 

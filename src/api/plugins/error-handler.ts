@@ -67,7 +67,8 @@ export function toFulcrumError(error: unknown, request: FastifyRequest, opts: Er
   if (mapped === 'ERR_REQUEST_BODY_TOO_LARGE') return apiError(mapped, { limit: opts.bodyLimit });
   if (mapped === 'ERR_REQUEST_UNSUPPORTED_MEDIA_TYPE') {
     const contentType = String(request.headers['content-type'] ?? '(none)').split(';')[0];
-    return apiError(mapped, { contentType, accepted: 'application/json' });
+    const accepts = (request.routeOptions?.config as { accepts?: readonly string[] } | undefined)?.accepts;
+    return apiError(mapped, { contentType, accepted: (accepts ?? ['application/json']).join(', ') });
   }
   if (mapped) return apiError(mapped);
   const status = typeof fe.statusCode === 'number' ? fe.statusCode : 500;

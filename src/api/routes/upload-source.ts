@@ -1,0 +1,116 @@
+/**
+ * How an upload reached us: a text/csv stream, a multipart file, or JSON. Resolves the dataset
+ * name and declared kinds from the query string (or multipart fields) and wraps every stream
+ * in the upload byte limit.
+ */
+import type { Readable } from 'node:stream';
+import type { MultipartFile } from '@fastify/multipart';
+import type { FastifyRequest } from 'fastify';
+import type { SchemaDeclaration as SchemaDeclarationType } from '../../app/datasets/types.js';
+import { apiError } from '../../errors/catalogue.js';
+import { FulcrumError } from '../../errors/fulcrum-error.js';
+import { limitBytes, type ByteLimit } from '../plugins/csv-body.js';
+import { ColumnKind, DatasetName, SchemaDeclaration } from '../schemas/datasets.js';
+
+/** Media types the upload routes accept. */
+export const UPLOAD_MEDIA_TYPES = ['text/csv', 'multipart/form-data', 'application/json'] as const;
+
+/** Lower-cased media type without parameters, or '' when absent. */
+export function mediaTypeOf(request: FastifyRequest): string {
+  return String(request.headers['content-type'] ?? '').split(';')[0].trim().toLowerCase();
+}
+
+function invalid(location: string, field: string, reason: string): FulcrumError {
+  const e = apiError('ERR_REQUEST_VALIDATION', { location, field, reason });
+  return new FulcrumError(e.code, e.status, e.message, { location, field, errors: [{ location, field, reason }] });
+}
+
+/** Parse "col:kind,col:kind" (the last ':' of each item separates name and kind). */
+export function parseKinds(text: string, location: string): SchemaDeclarationType {
+  const out: SchemaDeclarationType = {};
+  for (const raw of text.split(',')) {
+    const item = raw.trim();
+    if (item.length === 0) continue;
+    const at = item.lastIndexOf(':');
+    const name = at > 0 ? item.slice(0, at).trim() : '';
+    const kind = ColumnKind.safeParse(at > 0 ? item.slice(at + 1).trim() : '');
+    if (!name || !kind.success) {
+      throw invalid(location, 'kinds', `each item must read column:kind with kind continuous, binary or categorical (item ${JSON.stringify(item.slice(0, 80))})`);
+    }
+    out[name] = kind.data;
+  }
+  return out;
+}
+
+/** Parse the `schema` parameter (JSON object of declarations). */
+export function parseSchemaParam(text: string, location: string): SchemaDeclarationType {
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch {
+    throw invalid(location, 'schema', 'is not valid JSON');
+  }
+  const parsed = SchemaDeclaration.safeParse(json);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    throw invalid(location, `schema.${issue.path.join('.')}`, issue.message);
+  }
+  return parsed.data;
+}
+
+/** Declarations from `kinds` and/or `schema` (schema wins for a column named in both). */
+export function declarations(kinds: string | undefined, schema: string | undefined, location: string): SchemaDeclarationType | undefined {
+  if (kinds === undefined && schema === undefined) return undefined;
+  return { ...(kinds ? parseKinds(kinds, location) : {}), ...(schema ? parseSchemaParam(schema, location) : {}) };
+}
+
+/** Check a dataset name from a query string or form field. */
+export function checkedName(name: string | undefined, location: string): string {
+  if (name === undefined) throw invalid(location, 'name', 'Required: a dataset name');
+  const parsed = DatasetName.safeParse(name);
+  if (!parsed.success) throw invalid(location, 'name', parsed.error.issues[0].message);
+  return parsed.data;
+}
+
+/** A streamed CSV upload, already behind the byte limit. */
+export interface CsvUpload {
+  body: ByteLimit;
+  /** Name and declarations from multipart fields (undefined for a text/csv body). */
+  fields?: { name?: string; kinds?: string; schema?: string; filename?: string };
+}
+
+const fieldValue = (file: MultipartFile, key: string): string | undefined => {
+  const f = file.fields[key];
+  const one = Array.isArray(f) ? f[0] : f;
+  return one && one.type === 'field' && typeof one.value === 'string' ? one.value : undefined;
+};
+
+/** The CSV stream of a text/csv body or of the multipart part named "file". */
+export async function csvUpload(request: FastifyRequest, uploadLimit: number): Promise<CsvUpload> {
+  if (mediaTypeOf(request) === 'text/csv') {
+    return { body: limitBytes(request.body as Readable, uploadLimit) };
+  }
+  const file = await request.file({ limits: { fileSize: uploadLimit, files: 1, fields: 10, fieldSize: 200_000 } });
+  if (!file) throw apiError('ERR_REQUEST_MULTIPART_NO_FILE');
+  return {
+    body: limitBytes(file.file, uploadLimit),
+    fields: {
+      name: fieldValue(file, 'name'),
+      kinds: fieldValue(file, 'kinds'),
+      schema: fieldValue(file, 'schema'),
+      filename: file.filename,
+    },
+  };
+}
+
+/** Run an ingest over a limited stream; a limit overrun reports 413 whatever the consumer made of it. */
+export async function withUploadLimit<T>(upload: CsvUpload, work: () => Promise<T>): Promise<T> {
+  try {
+    return await work();
+  } catch (err) {
+    if (upload.body.exceeded) throw upload.body.exceeded;
+    throw err;
+  } finally {
+    if (!upload.body.destroyed) upload.body.destroy();
+  }
+}
