@@ -1,0 +1,83 @@
+import { describe, expect, it } from 'vitest';
+import { makeFrame, type Column, type Frame } from '../../../src/core/frame/frame.js';
+import { chooseLearner } from '../../../src/core/discovery/auto.js';
+import { jarqueBera } from '../../../src/core/discovery/gaussianity.js';
+import { Rng } from '../../../src/core/random/rng.js';
+
+const ALL = new Set(['pc', 'direct-lingam', 'linear-notears', 'mlp-notears']);
+const cont = (name: string, values: Float64Array): Column => ({ name, kind: 'continuous', values });
+
+type Noise = (rng: Rng) => number;
+const gauss: Noise = (rng) => rng.normal();
+const uniform: Noise = (rng) => 2 * Math.sqrt(3) * (rng.uniform() - 0.5);
+const laplace: Noise = (rng) => {
+  const u = rng.uniform() - 0.5;
+  return (-Math.sign(u) * Math.log(1 - 2 * Math.abs(u))) / Math.SQRT2;
+};
+
+/** x0 → x1 → x3, x0 → x2 → x3, x3 → x4, with mechanism f applied to each parent term. */
+function sem(n: number, noise: Noise, f: (v: number) => number, seed: number): Frame {
+  const rng = Rng.create(seed);
+  const x = Array.from({ length: 5 }, () => new Float64Array(n));
+  for (let r = 0; r < n; r++) {
+    x[0][r] = noise(rng);
+    x[1][r] = 0.9 * f(x[0][r]) + noise(rng);
+    x[2][r] = -0.8 * f(x[0][r]) + noise(rng);
+    x[3][r] = 0.7 * f(x[1][r]) + 0.7 * f(x[2][r]) + noise(rng);
+    x[4][r] = -0.9 * f(x[3][r]) + noise(rng);
+  }
+  return makeFrame(x.map((v, j) => cont(`x${j}`, v)));
+}
+const linear = (v: number) => v;
+
+describe('jarqueBera (Jarque & Bera 1980)', () => {
+  it('estimates the analytic excess kurtosis of uniform (−1.2), Laplace (3) and Gaussian (0) samples', () => {
+    const rng = Rng.create(1);
+    const draw = (g: Noise) => Float64Array.from({ length: 100_000 }, () => g(rng));
+    expect(jarqueBera(draw(uniform)).excessKurtosis).toBeCloseTo(-1.2, 1);
+    expect(jarqueBera(draw(laplace)).excessKurtosis).toBeGreaterThan(2.7);
+    const g = jarqueBera(draw(gauss));
+    expect(Math.abs(g.excessKurtosis)).toBeLessThan(0.08);
+    expect(Math.abs(g.skewness)).toBeLessThan(0.04);
+    // χ²(2) survival function is exp(−x/2) (analytic).
+    expect(g.pValue).toBeCloseTo(Math.exp(-g.statistic / 2), 10);
+  });
+});
+
+describe('auto rule', () => {
+  it('picks DirectLiNGAM for linear data with uniform or Laplace noise', () => {
+    for (const [noise, seed] of [[uniform, 1], [laplace, 2]] as const) {
+      const c = chooseLearner(sem(2000, noise, linear, seed), ALL);
+      expect(c.learner).toBe('direct-lingam');
+      expect(c.reasons.join(' ')).toMatch(/Jarque–Bera/);
+    }
+  });
+
+  it('picks PC for linear Gaussian data (only the equivalence class is identifiable)', () => {
+    const c = chooseLearner(sem(2000, gauss, linear, 3), ALL);
+    expect(c.learner).toBe('pc');
+    expect(c.diagnostics.nonlinear).toBe(0);
+    expect(c.reasons.join(' ')).toMatch(/equivalence class/);
+  });
+
+  it('picks the MLP learner for nonlinear mechanisms, PC when it is unavailable', () => {
+    const f = sem(2000, gauss, (v) => Math.tanh(2 * v) + 0.5 * v * v, 4);
+    const c = chooseLearner(f, ALL);
+    expect(c.learner).toBe('mlp-notears');
+    expect(c.diagnostics.nonlinear).toBeGreaterThanOrEqual(2);
+    expect(chooseLearner(f, new Set(['pc', 'direct-lingam'])).learner).toBe('pc');
+  });
+
+  it('picks PC for mostly discrete data and for small samples', () => {
+    const rng = Rng.create(5);
+    const n = 500;
+    const bin = (name: string): Column => ({ name, kind: 'binary', values: Float64Array.from({ length: n }, () => (rng.uniform() < 0.5 ? 1 : 0)) });
+    const f = makeFrame([bin('a'), bin('b'), bin('c'), cont('d', Float64Array.from({ length: n }, () => rng.normal()))]);
+    const c = chooseLearner(f, ALL);
+    expect(c.learner).toBe('pc');
+    expect(c.reasons[0]).toMatch(/3 of 4 columns are binary or categorical/);
+    const small = chooseLearner(sem(150, laplace, linear, 6), ALL);
+    expect(small.learner).toBe('pc');
+    expect(small.reasons[0]).toMatch(/only 150 rows/);
+  });
+});

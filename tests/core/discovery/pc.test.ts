@@ -1,0 +1,162 @@
+import { describe, expect, it } from 'vitest';
+import { makeFrame, type Column, type Frame } from '../../../src/core/frame/frame.js';
+import { compileKnowledge, type Knowledge } from '../../../src/core/discovery/knowledge.js';
+import { pc, type PcOptions } from '../../../src/core/discovery/pc.js';
+import { Rng } from '../../../src/core/random/rng.js';
+
+const cont = (name: string, values: Float64Array): Column => ({ name, kind: 'continuous', values });
+
+function run(frame: Frame, knowledge: Knowledge = {}, options: Partial<PcOptions> = {}) {
+  const names = frame.columns.map((c) => c.name);
+  return pc.learn(frame, compileKnowledge(names, knowledge), options, Rng.create(0));
+}
+
+/** Edges as strings: "a→b" for directed, "a—b" (a before b in column order) for undirected. */
+function edges(res: ReturnType<typeof run>): string[] {
+  const { n, names, adj } = res.graph;
+  const out: string[] = [];
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      if (!adj[i * n + j]) continue;
+      if (adj[j * n + i]) {
+        if (i < j) out.push(`${names[i]}—${names[j]}`);
+      } else out.push(`${names[i]}→${names[j]}`);
+    }
+  }
+  return out.sort();
+}
+
+function gaussians(n: number, k: number, seed: number): Float64Array[] {
+  const rng = Rng.create(seed);
+  return Array.from({ length: k }, () => {
+    const v = new Float64Array(n);
+    for (let r = 0; r < n; r++) v[r] = rng.normal();
+    return v;
+  });
+}
+
+describe('PC-stable', () => {
+  // Analytic truth: the CPDAG of x→z←y is the DAG itself (an unshielded collider);
+  // the CPDAG of x→y→z is the undirected chain x—y—z (Verma & Pearl 1990).
+  it('finds the v-structure of a linear Gaussian collider x→z←y (n = 2000)', () => {
+    const n = 2000;
+    const [x, y, e] = gaussians(n, 3, 1);
+    const z = new Float64Array(n);
+    for (let r = 0; r < n; r++) z[r] = 0.8 * x[r] - 0.6 * y[r] + 0.5 * e[r];
+    const res = run(makeFrame([cont('x', x), cont('y', y), cont('z', z)]));
+    expect(res.kind).toBe('cpdag');
+    expect(edges(res)).toEqual(['x→z', 'y→z']);
+  });
+
+  it('leaves the chain x→y→z undirected', () => {
+    const n = 2000;
+    const [x, e1, e2] = gaussians(n, 3, 2);
+    const y = new Float64Array(n);
+    const z = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      y[r] = 0.8 * x[r] + 0.6 * e1[r];
+      z[r] = -0.7 * y[r] + 0.7 * e2[r];
+    }
+    expect(edges(run(makeFrame([cont('x', x), cont('y', y), cont('z', z)])))).toEqual(['x—y', 'y—z']);
+  });
+
+  it('orients by the tiers, and Meek R1 carries the orientation on', () => {
+    // w→x→y→z chain; only w is placed before x by the tiers: x→y and y→z follow by R1.
+    const n = 2000;
+    const [w, e1, e2, e3] = gaussians(n, 4, 3);
+    const x = new Float64Array(n);
+    const y = new Float64Array(n);
+    const z = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      x[r] = 0.8 * w[r] + 0.6 * e1[r];
+      y[r] = 0.8 * x[r] + 0.6 * e2[r];
+      z[r] = 0.8 * y[r] + 0.6 * e3[r];
+    }
+    const f = makeFrame([cont('z', z), cont('y', y), cont('x', x), cont('w', w)]);
+    expect(edges(run(f))).toEqual(['x—w', 'y—x', 'z—y']);
+    expect(edges(run(f, { tiers: [['w'], ['x']] }))).toEqual(['w→x', 'x→y', 'y→z']);
+    // Tiers against the truth: the edge between tiers still points from earlier to later,
+    // and R1 then orients the rest of the chain away from it.
+    expect(edges(run(f, { tiers: [['z'], ['y']] }))).toEqual(['x→w', 'y→x', 'z→y']);
+  });
+
+  it('keeps a required edge the data would remove and never adds a forbidden one', () => {
+    const n = 1500;
+    const [a, b, c] = gaussians(n, 3, 4);
+    const res = run(makeFrame([cont('a', a), cont('b', b), cont('c', c)]), { required: [['a', 'b']] });
+    expect(edges(res)).toEqual(['a→b']);
+    // x→y true, but y→x forbidden only: the edge must be x→y.
+    const y = new Float64Array(n);
+    for (let r = 0; r < n; r++) y[r] = 0.9 * a[r] + 0.4 * b[r];
+    const res2 = run(makeFrame([cont('x', a), cont('y', y)]), { forbidden: [['y', 'x']] });
+    expect(edges(res2)).toEqual(['x→y']);
+    const res3 = run(makeFrame([cont('x', a), cont('y', y)]), { forbidden: [['y', 'x'], ['x', 'y']] });
+    expect(edges(res3)).toEqual([]);
+  });
+
+  it('finds the skeleton of mixed data: x → b (logistic) → y ← z → c (3-level softmax)', () => {
+    const n = 2000;
+    const rng = Rng.create(5);
+    const x = new Float64Array(n);
+    const b = new Float64Array(n);
+    const y = new Float64Array(n);
+    const z = new Float64Array(n);
+    const c = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      x[r] = rng.normal();
+      z[r] = rng.normal();
+      b[r] = rng.uniform() < 1 / (1 + Math.exp(-1.5 * x[r])) ? 1 : 0;
+      y[r] = 1.2 * b[r] + 0.7 * z[r] + 0.6 * rng.normal();
+      // softmax over levels with scores (0, 1.5z, −1.5z)
+      const s1 = Math.exp(1.5 * z[r]);
+      const s2 = Math.exp(-1.5 * z[r]);
+      const u = rng.uniform() * (1 + s1 + s2);
+      c[r] = u < 1 ? 0 : u < 1 + s1 ? 1 : 2;
+    }
+    const f = makeFrame([
+      cont('x', x),
+      { name: 'b', kind: 'binary', values: b },
+      cont('y', y),
+      cont('z', z),
+      { name: 'c', kind: 'categorical', values: c, levels: ['p', 'q', 'r'] },
+    ]);
+    const res = run(f);
+    const skeleton = edges(res).map((e) => e.replace('→', '—').split('—').sort().join('—')).sort();
+    expect(skeleton).toEqual(['b—x', 'b—y', 'c—z', 'y—z']);
+    // b→y←z is an unshielded collider: both must be oriented into y.
+    expect(edges(res)).toEqual(expect.arrayContaining(['b→y', 'z→y']));
+    expect(res.notes[0]).toMatch(/likelihood-ratio/);
+  });
+
+  it('gives the same CPDAG whatever the column order (order independence)', () => {
+    const n = 1000;
+    const [a, e1, e2, e3, e4] = gaussians(n, 5, 6);
+    const b = new Float64Array(n);
+    const c = new Float64Array(n);
+    const d = new Float64Array(n);
+    const e = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      b[r] = 0.7 * a[r] + e1[r];
+      c[r] = 0.6 * a[r] + e2[r];
+      // opposite signs: explaining away adds to, never cancels, the b–c dependence through a
+      d[r] = 0.8 * b[r] - 0.8 * c[r] + e3[r];
+      e[r] = 0.7 * d[r] + e4[r];
+    }
+    const cols = [cont('a', a), cont('b', b), cont('c', c), cont('d', d), cont('e', e)];
+    const norm = (s: string[]) => s.map((x) => (x.includes('—') ? x.split('—').sort().join('—') : x)).sort();
+    const ref = norm(edges(run(makeFrame(cols))));
+    const rev = norm(edges(run(makeFrame([...cols].reverse()))));
+    const mixed = norm(edges(run(makeFrame([cols[3], cols[0], cols[4], cols[2], cols[1]]))));
+    expect(rev).toEqual(ref);
+    expect(mixed).toEqual(ref);
+    // Truth: b→d←c collider, then d→e by Meek R1; a—b, a—c undirected.
+    expect(ref).toEqual(['a—b', 'a—c', 'b→d', 'c→d', 'd→e']);
+  });
+
+  it('rejects bad options', () => {
+    const [a, b] = gaussians(50, 2, 7);
+    const f = makeFrame([cont('a', a), cont('b', b)]);
+    expect(() => run(f, {}, { alpha: 0 })).toThrow(RangeError);
+    expect(() => run(f, {}, { vStructureRule: 'x' as never })).toThrow(/vStructureRule/);
+  });
+});
