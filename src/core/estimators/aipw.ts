@@ -81,12 +81,39 @@ export interface AipwResult {
   readonly adjustment: readonly string[];
 }
 
-/** Cross-fitted AIPW estimate of E[Y | do(T = a)] − E[Y | do(T = b)] given an adjustment set. */
-export function aipw(input: AipwInput, rng: Rng, options: AipwOptions = {}): AipwResult {
+/** Per-unit AIPW scores for several arms from one set of cross-fitted nuisances. */
+export interface AipwScores {
+  /** Arm labels, in the order of `arms` given. */
+  readonly arms: readonly string[];
+  /** A × n scores ψ_c,i (arm-major); mean of row c estimates E[Y | do(T = arm c)]. */
+  readonly scores: Float64Array;
+  /** Frame row of each scored unit (complete cases). */
+  readonly rows: Int32Array;
+  readonly n: number;
+  readonly dropped: number;
+  readonly folds: number;
+  readonly propensityModel: 'logistic' | 'softmax';
+  readonly outcomeModel: OutcomeFamily;
+  /** Share of units with a clipped propensity for at least one listed arm. */
+  readonly clippedShare: number;
+  /** Overlap of each listed arm (cross-fitted propensities). */
+  readonly overlap: readonly ArmOverlap[];
+  readonly adjustment: readonly string[];
+}
+
+/**
+ * Cross-fitted AIPW scores ψ_c,i for every arm in `arms` (level names or values) given an
+ * adjustment set. Propensities model every arm of the treatment; outcome regressions are
+ * fitted per listed arm.
+ */
+export function aipwScores(
+  input: Omit<AipwInput, 'arm' | 'reference'> & { readonly arms: readonly ArmValue[] },
+  rng: Rng,
+  options: AipwOptions = {},
+): AipwScores {
   const { frame, treatment, outcome, adjustment } = input;
   const K = options.folds ?? 5;
   const [clipLo, clipHi] = options.clip ?? [0.01, 0.99];
-  const level = options.level ?? 0.9;
   if (!Number.isInteger(K) || K < 1) throw new EstimatorInputError(`folds must be a positive integer, got ${K}`);
   if (!(clipLo > 0 && clipHi < 1 && clipLo < clipHi)) throw new EstimatorInputError(`clip bounds must satisfy 0 < lo < hi < 1`);
   if (adjustment.includes(treatment) || adjustment.includes(outcome)) {
@@ -97,9 +124,8 @@ export function aipw(input: AipwInput, rng: Rng, options: AipwOptions = {}): Aip
   const rows = completeRows(frame, [treatment, outcome, ...adjustment]);
   const n = rows.length;
   const coding = codeTreatment(tCol);
-  const a = armCode(tCol, coding, input.arm);
-  const b = armCode(tCol, coding, input.reference);
-  if (a === b) throw new EstimatorInputError('arm and reference are the same');
+  const armCodes = input.arms.map((a) => armCode(tCol, coding, a));
+  const A = armCodes.length;
   const k = coding.k;
 
   // Outcome as numbers.
@@ -126,7 +152,7 @@ export function aipw(input: AipwInput, rng: Rng, options: AipwOptions = {}): Aip
     codes[r] = coding.codes[rows[r]];
     perArm[codes[r]]++;
   }
-  for (const c of [a, b]) {
+  for (const c of armCodes) {
     if (perArm[c] < Math.max(2, K)) {
       throw new EstimatorInputError(`arm "${coding.labels[c]}" of "${treatment}" has ${perArm[c]} complete rows; AIPW needs at least ${Math.max(2, K)}`);
     }
@@ -145,8 +171,7 @@ export function aipw(input: AipwInput, rng: Rng, options: AipwOptions = {}): Aip
   }
 
   const prop = new Float64Array(n * k);
-  const mA = new Float64Array(n);
-  const mB = new Float64Array(n);
+  const m = new Float64Array(A * n);
   for (let f = 0; f < K; f++) {
     const train: number[] = [];
     const test: number[] = [];
@@ -160,71 +185,137 @@ export function aipw(input: AipwInput, rng: Rng, options: AipwOptions = {}): Aip
     const pm = fitPropensity(xTrain, cTrain, k);
     const xTest = subRows(x, test);
     const pTest = predictPropensity(pm, xTest);
-    const trainA: number[] = [];
-    const trainB: number[] = [];
-    for (const r of train) {
-      if (codes[r] === a) trainA.push(r);
-      else if (codes[r] === b) trainB.push(r);
-    }
-    const oa = fitOutcome(x, y, Int32Array.from(trainA), family);
-    const ob = fitOutcome(x, y, Int32Array.from(trainB), family);
-    const pa = predictOutcome(oa, xTest);
-    const pb = predictOutcome(ob, xTest);
     for (let i = 0; i < test.length; i++) {
       const r = test[i];
       for (let c = 0; c < k; c++) prop[r * k + c] = pTest[i * k + c];
-      mA[r] = pa[i];
-      mB[r] = pb[i];
+    }
+    for (let a = 0; a < A; a++) {
+      const trainA: number[] = [];
+      for (const r of train) if (codes[r] === armCodes[a]) trainA.push(r);
+      const om = fitOutcome(x, y, Int32Array.from(trainA), family);
+      const pred = predictOutcome(om, xTest);
+      for (let i = 0; i < test.length; i++) m[a * n + test[i]] = pred[i];
     }
   }
 
-  const psiA = new Float64Array(n);
-  const psiB = new Float64Array(n);
+  const scores = new Float64Array(A * n);
   let clipped = 0;
   for (let r = 0; r < n; r++) {
-    let ea = prop[r * k + a];
-    let eb = prop[r * k + b];
     let wasClipped = false;
-    if (ea < clipLo) (ea = clipLo), (wasClipped = true);
-    else if (ea > clipHi) (ea = clipHi), (wasClipped = true);
-    if (eb < clipLo) (eb = clipLo), (wasClipped = true);
-    else if (eb > clipHi) (eb = clipHi), (wasClipped = true);
+    for (let a = 0; a < A; a++) {
+      const c = armCodes[a];
+      let e = prop[r * k + c];
+      if (e < clipLo) (e = clipLo), (wasClipped = true);
+      else if (e > clipHi) (e = clipHi), (wasClipped = true);
+      const mr = m[a * n + r];
+      scores[a * n + r] = mr + (codes[r] === c ? (y[r] - mr) / e : 0);
+    }
     if (wasClipped) clipped++;
-    psiA[r] = mA[r] + (codes[r] === a ? (y[r] - mA[r]) / ea : 0);
-    psiB[r] = mB[r] + (codes[r] === b ? (y[r] - mB[r]) / eb : 0);
   }
-  const muA = meanOf(psiA);
-  const muB = meanOf(psiB);
-  let ssA = 0;
-  let ssB = 0;
-  let ssD = 0;
-  const ate = muA - muB;
-  for (let r = 0; r < n; r++) {
-    ssA += (psiA[r] - muA) ** 2;
-    ssB += (psiB[r] - muB) ** 2;
-    ssD += (psiA[r] - psiB[r] - ate) ** 2;
-  }
-  const se = Math.sqrt(ssD / (n - 1) / n);
-  const z = normalQuantile(0.5 + level / 2);
   return {
-    ate,
-    se,
-    lower: ate - z * se,
-    upper: ate + z * se,
-    level,
-    meanArm: muA,
-    meanReference: muB,
-    seArm: Math.sqrt(ssA / (n - 1) / n),
-    seReference: Math.sqrt(ssB / (n - 1) / n),
+    arms: armCodes.map((c) => coding.labels[c]),
+    scores,
+    rows,
     n,
     dropped: frame.nRows - n,
     folds: K,
     propensityModel: k === 2 ? 'logistic' : 'softmax',
     outcomeModel: family,
     clippedShare: n === 0 ? 0 : clipped / n,
-    overlap: armOverlap(prop, codes, k, [a, b], coding.labels),
+    overlap: armOverlap(prop, codes, k, armCodes, coding.labels),
     adjustment: adjustment.slice(),
   };
+}
+
+/**
+ * Mean, standard error and interval of the contrast of arms i and j (indices into s.arms)
+ * from AIPW scores, optionally over a subset of units (`mask` over s.rows order) and with
+ * unit weights (survey weights; standard error by the weighted influence function).
+ */
+export function scoreContrast(
+  s: Pick<AipwScores, 'scores' | 'n'>,
+  i: number,
+  j: number,
+  level = 0.9,
+  weights?: Float64Array,
+  mask?: Uint8Array,
+): { estimate: number; se: number; lower: number; upper: number; meanI: number; meanJ: number; seI: number; seJ: number; n: number } {
+  const n = s.n;
+  const sc = s.scores;
+  let sw = 0;
+  let mi = 0;
+  let mj = 0;
+  let cnt = 0;
+  for (let r = 0; r < n; r++) {
+    if (mask && mask[r] !== 1) continue;
+    const w = weights ? weights[r] : 1;
+    sw += w;
+    mi += w * sc[i * n + r];
+    mj += w * sc[j * n + r];
+    cnt++;
+  }
+  mi /= sw;
+  mj /= sw;
+  const est = mi - mj;
+  let vi = 0;
+  let vj = 0;
+  let vd = 0;
+  for (let r = 0; r < n; r++) {
+    if (mask && mask[r] !== 1) continue;
+    const w = weights ? weights[r] : 1;
+    const di = sc[i * n + r] - mi;
+    const dj = sc[j * n + r] - mj;
+    vi += w * w * di * di;
+    vj += w * w * dj * dj;
+    vd += w * w * (di - dj) * (di - dj);
+  }
+  // Var of a weighted mean Σw ψ / Σw: Σ w² (ψ − μ)² / (Σw)², with the n/(n−1) correction.
+  const corr = cnt > 1 ? cnt / (cnt - 1) : NaN;
+  const se = Math.sqrt((vd * corr) / (sw * sw));
+  const z = normalQuantile(0.5 + level / 2);
+  return {
+    estimate: est,
+    se,
+    lower: est - z * se,
+    upper: est + z * se,
+    meanI: mi,
+    meanJ: mj,
+    seI: Math.sqrt((vi * corr) / (sw * sw)),
+    seJ: Math.sqrt((vj * corr) / (sw * sw)),
+    n: cnt,
+  };
+}
+
+/** Cross-fitted AIPW estimate of E[Y | do(T = a)] − E[Y | do(T = b)] given an adjustment set. */
+export function aipw(input: AipwInput, rng: Rng, options: AipwOptions = {}): AipwResult {
+  const level = options.level ?? 0.9;
+  if (armKey(input.arm) === armKey(input.reference)) throw new EstimatorInputError('arm and reference are the same');
+  const s = aipwScores({ ...input, arms: [input.arm, input.reference] }, rng, options);
+  if (s.arms[0] === s.arms[1]) throw new EstimatorInputError('arm and reference are the same');
+  const c = scoreContrast(s, 0, 1, level);
+  return {
+    ate: c.estimate,
+    se: c.se,
+    lower: c.lower,
+    upper: c.upper,
+    level,
+    meanArm: c.meanI,
+    meanReference: c.meanJ,
+    seArm: c.seI,
+    seReference: c.seJ,
+    n: s.n,
+    dropped: s.dropped,
+    folds: s.folds,
+    propensityModel: s.propensityModel,
+    outcomeModel: s.outcomeModel,
+    clippedShare: s.clippedShare,
+    overlap: s.overlap,
+    adjustment: s.adjustment,
+  };
+}
+
+function armKey(a: ArmValue): string {
+  return typeof a === 'string' ? `s:${a}` : `n:${a}`;
 }
 
 function subRows(x: Matrix, idx: readonly number[]): Matrix {
@@ -237,8 +328,3 @@ function subRows(x: Matrix, idx: readonly number[]): Matrix {
   return { rows: idx.length, cols: p, data };
 }
 
-function meanOf(v: Float64Array): number {
-  let s = 0;
-  for (let i = 0; i < v.length; i++) s += v[i];
-  return v.length === 0 ? NaN : s / v.length;
-}
