@@ -1,5 +1,6 @@
 import type { ColumnKind } from '../frame/frame.js';
 import type { Graph } from '../graph/graph.js';
+import { topologicalOrder } from '../graph/topological-order.js';
 import type { Rng } from '../random/rng.js';
 import { randomMechanism, type Mechanism, type MechanismFamily, type MechanismOptions } from './mechanisms.js';
 import type { NoiseKind, NoiseSpec } from './noise.js';
@@ -51,25 +52,6 @@ export interface ScmSpec {
   readonly mechanismOptions?: MechanismOptions;
 }
 
-/** Topological order of a DAG (Kahn 1962); throws when the graph has a cycle. */
-export function dagOrder(g: Graph): Int32Array {
-  const n = g.n;
-  const indeg = new Int32Array(n);
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (g.adj[i * n + j] && !g.adj[j * n + i]) indeg[j]++;
-  const order = new Int32Array(n);
-  let head = 0;
-  let tail = 0;
-  for (let i = 0; i < n; i++) if (indeg[i] === 0) order[tail++] = i;
-  while (head < tail) {
-    const u = order[head++];
-    for (let v = 0; v < n; v++) {
-      if (g.adj[u * n + v] && !g.adj[v * n + u] && --indeg[v] === 0) order[tail++] = v;
-    }
-  }
-  if (tail !== n) throw new RangeError('the graph of a synthetic SCM must be a DAG (it has a cycle or an undirected edge)');
-  return order;
-}
-
 /**
  * Draw a random SCM on `graph`: node kinds, then one random mechanism per node (K per
  * categorical node). Binary and categorical intercepts are still 0 here; `randomScm` in
@@ -77,7 +59,9 @@ export function dagOrder(g: Graph): Int32Array {
  */
 export function buildScm(graph: Graph, spec: ScmSpec, rng: Rng): SyntheticScm {
   const d = graph.n;
-  const order = dagOrder(graph);
+  const topo = topologicalOrder(graph);
+  if (!topo) throw new RangeError('the graph of a synthetic SCM must be a DAG (it has a cycle or an undirected edge)');
+  const order = Int32Array.from(topo);
   const kinds: ColumnKind[] = new Array(d).fill('continuous');
   const nBinary = Math.round((spec.binaryShare ?? 0) * d);
   const nCat = Math.round((spec.categoricalShare ?? 0) * d);
