@@ -1,0 +1,78 @@
+/**
+ * Treatment arms of an effect query. An arm is what happens to the treatment variable:
+ *  - a value (number or level name): do(T = value);
+ *  - `{ shift: d }` or `{ percent: q }`: T moves from its own value by d, or by q% (continuous T);
+ *  - `{ policy: rules, otherwise }`: T set per unit by rules on pre-treatment variables;
+ *  - `'observe'`: no intervention (the natural course).
+ */
+import type { CompiledModel } from '../scm/compiled-model.js';
+import { KIND_CONTINUOUS } from '../scm/compiled-model.js';
+import type { InterventionValue, PolicyRule, ResolvedRule } from '../scm/intervention.js';
+import { InterventionError, resolveIntervention, valueCode } from '../scm/intervention.js';
+
+export type Arm =
+  | InterventionValue
+  | 'observe'
+  | { readonly set: InterventionValue }
+  | { readonly shift: number }
+  | { readonly percent: number }
+  | { readonly policy: readonly PolicyRule[]; readonly otherwise: InterventionValue };
+
+export const ARM_OBSERVE = 0;
+export const ARM_SET = 1;
+export const ARM_SHIFT = 2;
+export const ARM_SCALE = 3;
+export const ARM_POLICY = 4;
+
+/** An arm resolved against the treatment variable. */
+export interface ResolvedArm {
+  readonly label: string;
+  readonly action: number;
+  /** Set value (code for discrete), shift amount or scale factor. */
+  readonly amount: number;
+  readonly rules: readonly ResolvedRule[];
+  readonly otherwise: number;
+  /** Variables the policy reads (to check they are pre-treatment). */
+  readonly reads: readonly number[];
+}
+
+/** A stable text key of an arm (for caches and labels). */
+export function armKey(arm: Arm): string {
+  return typeof arm === 'object' ? JSON.stringify(arm) : `${typeof arm}:${arm}`;
+}
+
+/** Human label of an arm. */
+export function armLabel(arm: Arm): string {
+  if (arm === 'observe') return 'observe';
+  if (typeof arm !== 'object') return String(arm);
+  if ('set' in arm) return String(arm.set);
+  if ('shift' in arm) return `shift ${arm.shift >= 0 ? '+' : ''}${arm.shift}`;
+  if ('percent' in arm) return `shift ${arm.percent >= 0 ? '+' : ''}${arm.percent}%`;
+  return 'policy';
+}
+
+/** Resolve an arm on treatment variable t (throws InterventionError on bad values). */
+export function resolveArm(model: CompiledModel, t: number, arm: Arm): ResolvedArm {
+  const base = { label: armLabel(arm), rules: [] as ResolvedRule[], otherwise: NaN, reads: [] as number[] };
+  if (arm === 'observe') {
+    // A level literally named "observe" wins over the keyword.
+    const lv = model.levels[t];
+    if (!(lv && lv.includes('observe'))) return { ...base, action: ARM_OBSERVE, amount: NaN };
+  }
+  if (typeof arm !== 'object') return { ...base, action: ARM_SET, amount: valueCode(model, t, arm) };
+  if ('set' in arm) return { ...base, action: ARM_SET, amount: valueCode(model, t, arm.set) };
+  if ('shift' in arm || 'percent' in arm) {
+    if (model.kinds[t] !== KIND_CONTINUOUS) throw new InterventionError(`treatment "${model.names[t]}" is not continuous: it can be set, not shifted`);
+    if ('shift' in arm) {
+      if (!Number.isFinite(arm.shift)) throw new InterventionError('shift amount must be finite');
+      return { ...base, action: ARM_SHIFT, amount: arm.shift };
+    }
+    if (!Number.isFinite(arm.percent)) throw new InterventionError('shift percent must be finite');
+    return { ...base, action: ARM_SCALE, amount: 1 + arm.percent / 100 };
+  }
+  const res = resolveIntervention(model, { type: 'policy', variable: model.names[t], rules: arm.policy, otherwise: arm.otherwise });
+  const pol = res.policies.get(t)!;
+  const reads = new Set<number>();
+  for (const r of pol.rules) for (const c of r.conditions) reads.add(c.variable);
+  return { ...base, action: ARM_POLICY, amount: NaN, rules: pol.rules, otherwise: pol.otherwise, reads: [...reads] };
+}

@@ -1,0 +1,175 @@
+/**
+ * One contrast (arm i against arm j) over a set of reference rows, per graph and mixed over
+ * the graph set.
+ *
+ * Per graph g: the estimate is the weighted mean (reference weights) of the per-unit
+ * differences y_i − y_j. Its standard error combines
+ *  - Monte Carlo error of the reference sample: the weighted sd of the per-unit differences
+ *    over √n_eff, and
+ *  - estimation error of the fitted model, measured by the cross-check's influence-function
+ *    standard error for the same contrast on the same rows (AIPW or regression adjustment
+ *    under the graph's adjustment set). This is an approximation: it is the sampling error of
+ *    an estimator that does not depend on the mechanism family (for AIPW, the semiparametric
+ *    efficiency bound, Hahn 1998), and it already contains the between-unit variation, so the
+ *    two are not added: se_g = max(MC se, cross-check se).
+ * A graph without a directed path treatment ⇝ outcome has effect exactly 0 (se 0).
+ * The interval is the central `level` range of the mixture Σ w_g N(est_g, se_g²)
+ * (effects/interval.ts). Without a cross-check, se_g is the Monte Carlo part only, which
+ * understates the error of a well-fitted model; the cautions say so.
+ */
+import { scoreContrast } from '../estimators/aipw.js';
+import type { ArmOverlap } from '../estimators/overlap.js';
+import { normalQuantile } from '../stats/normal.js';
+import type { CrossCheckEntry } from './cross-check.js';
+import type { UnitOutcomes } from './effect-cache.js';
+import { mixtureInterval } from './interval.js';
+
+/** The cross-check estimate of one graph. */
+export interface CrossCheckEstimate {
+  readonly method: 'aipw' | 'regression-adjustment';
+  readonly estimate: number;
+  readonly se: number;
+  readonly lower: number;
+  readonly upper: number;
+  /** True when this interval and the simulation's interval for the graph do not overlap. */
+  readonly disagrees: boolean;
+}
+
+/** One graph's part of an estimate. */
+export interface GraphBreakdown {
+  readonly graph: number;
+  readonly weight: number;
+  readonly causalPath: boolean;
+  readonly estimate: number;
+  readonly se: number;
+  readonly monteCarloSe: number;
+  readonly lower: number;
+  readonly upper: number;
+  /** Mean outcome under arm i and under arm j. */
+  readonly meanArm: number;
+  readonly meanReference: number;
+  readonly adjustment: readonly string[];
+  readonly adjustmentKind: string;
+  readonly crossCheck: CrossCheckEstimate | null;
+  readonly crossCheckNote: string | null;
+  readonly positivity: readonly ArmOverlap[] | null;
+}
+
+export interface ContrastSummary {
+  readonly estimate: number;
+  readonly lower: number;
+  readonly upper: number;
+  readonly level: number;
+  readonly meanArm: number;
+  readonly meanReference: number;
+  readonly graphShare: number;
+  readonly rows: number;
+  readonly perGraph: readonly GraphBreakdown[];
+}
+
+/**
+ * Contrast of arm i against arm j (indices into u.arms) over the rows in `mask` (all rows if
+ * null). `checks` may be null to skip the cross-check (Monte Carlo error only).
+ */
+export function contrast(
+  u: UnitOutcomes,
+  weights: Float64Array,
+  graphWeights: Float64Array,
+  checks: readonly CrossCheckEntry[] | null,
+  i: number,
+  j: number,
+  mask: Uint8Array | null,
+  level: number,
+): ContrastSummary {
+  const G = graphWeights.length;
+  const A = u.arms.length;
+  const R = weights.length;
+  const z = normalQuantile(0.5 + level / 2);
+  const mu = new Float64Array(G);
+  const se = new Float64Array(G);
+  const perGraph: GraphBreakdown[] = [];
+  let rows = 0;
+  let mA = 0;
+  let mB = 0;
+  for (let g = 0; g < G; g++) {
+    const base = g * A * R;
+    const yi = base + i * R;
+    const yj = base + j * R;
+    let sw = 0;
+    let s = 0;
+    let si = 0;
+    let sj = 0;
+    let cnt = 0;
+    for (let r = 0; r < R; r++) {
+      if (mask !== null && mask[r] !== 1) continue;
+      const w = weights[r];
+      sw += w;
+      si += w * u.values[yi + r];
+      sj += w * u.values[yj + r];
+      cnt++;
+    }
+    const meanI = si / sw;
+    const meanJ = sj / sw;
+    const m = meanI - meanJ;
+    for (let r = 0; r < R; r++) {
+      if (mask !== null && mask[r] !== 1) continue;
+      const d = u.values[yi + r] - u.values[yj + r] - m;
+      s += weights[r] * weights[r] * d * d;
+    }
+    rows = cnt;
+    const mcSe = cnt > 1 ? Math.sqrt((s * cnt) / (cnt - 1)) / sw : 0;
+    const causal = u.causalPath[g] === 1;
+    const check = checks ? checks[g] : null;
+    let cc: CrossCheckEstimate | null = null;
+    let seG = causal ? mcSe : 0;
+    if (check && check.scores && causal) {
+      const sc = check.scores;
+      let subMask: Uint8Array | undefined;
+      if (mask !== null) {
+        subMask = new Uint8Array(sc.n);
+        for (let k = 0; k < sc.n; k++) subMask[k] = mask[sc.rows[k]];
+      }
+      const c = scoreContrast(sc, i, j, level, sc.weights, subMask);
+      if (Number.isFinite(c.se)) seG = Math.max(seG, c.se);
+      cc = { method: sc.method, estimate: c.estimate, se: c.se, lower: c.lower, upper: c.upper, disagrees: false };
+    }
+    const lo = m - z * seG;
+    const hi = m + z * seG;
+    if (cc) cc = { ...cc, disagrees: cc.upper < lo || cc.lower > hi };
+    mu[g] = causal ? m : 0;
+    se[g] = seG;
+    mA += graphWeights[g] * meanI;
+    mB += graphWeights[g] * meanJ;
+    perGraph.push({
+      graph: g,
+      weight: graphWeights[g],
+      causalPath: causal,
+      estimate: mu[g],
+      se: seG,
+      monteCarloSe: causal ? mcSe : 0,
+      lower: causal ? lo : 0,
+      upper: causal ? hi : 0,
+      meanArm: meanI,
+      meanReference: meanJ,
+      adjustment: check ? check.adjustment.names : [],
+      adjustmentKind: check ? check.adjustment.kind : 'not computed',
+      crossCheck: cc,
+      crossCheckNote: check ? check.note : 'cross-check skipped',
+      positivity: check && check.scores ? check.scores.overlap : null,
+    });
+  }
+  let sw = 0;
+  for (let g = 0; g < G; g++) sw += graphWeights[g];
+  const mix = mixtureInterval(mu, se, graphWeights, level);
+  return {
+    estimate: mix.estimate,
+    lower: mix.lower,
+    upper: mix.upper,
+    level,
+    meanArm: mA / sw,
+    meanReference: mB / sw,
+    graphShare: mix.graphShare,
+    rows,
+    perGraph,
+  };
+}

@@ -1,0 +1,156 @@
+/**
+ * Counterfactual outcomes of the reference rows under each arm, for one graph of the set.
+ *
+ * Each reference row keeps its abducted noise; the treatment is set (or shifted, or set by a
+ * policy) and only the nodes on a directed path from the treatment to the outcome are
+ * recomputed, in topological order, through the compiled kernels (scm/kernel.ts). Every
+ * other node keeps its observed value: a non-descendant of the treatment is unchanged by the
+ * intervention, and a descendant that is not an ancestor of the outcome cannot reach it.
+ * The same noise is used for every arm (common random numbers), so per-unit differences carry
+ * no simulation noise from the rows' own draws.
+ *
+ * Outcome value per row: a continuous outcome is f(parents) + e (its abducted noise); for a
+ * binary or categorical outcome we store P(outcome | counterfactual parents) — the abducted
+ * draw averaged over the outcome's own noise (Rao–Blackwellised), which has the same mean over
+ * rows with less Monte Carlo noise.
+ */
+import type { CompiledModel } from '../scm/compiled-model.js';
+import { KIND_CATEGORICAL, KIND_CONTINUOUS } from '../scm/compiled-model.js';
+import { conditionHolds, InterventionError } from '../scm/intervention.js';
+import { applyNoise, kernelWidths, mechanismOutput } from '../scm/kernel.js';
+import { ancestorMask, descendantMask } from '../scm/model-access.js';
+import type { ResolvedArm } from './arms.js';
+import { ARM_OBSERVE, ARM_POLICY, ARM_SCALE, ARM_SET, ARM_SHIFT } from './arms.js';
+
+/** Scratch buffers reused across graphs and arms of one query. */
+export interface SimulationScratch {
+  readonly work: Float64Array;
+  readonly mean: Float64Array;
+  readonly hidden: Float64Array;
+}
+
+/** Allocate scratch for a model (once per query, or kept in the query cache). */
+export function simulationScratch(model: CompiledModel): SimulationScratch {
+  const R = model.nReference;
+  const { hidden, outputs } = kernelWidths(model);
+  return {
+    work: model.referenceValues.slice(),
+    mean: new Float64Array(Math.max(1, outputs) * R),
+    hidden: new Float64Array(Math.max(1, hidden) * R),
+  };
+}
+
+/** Nodes (topological order of graph g) on a directed path treatment ⇝ outcome, treatment excluded. */
+export function affectedNodes(model: CompiledModel, g: number, t: number, y: number): Int32Array {
+  const p = model.p;
+  const de = descendantMask(model, g, [t]);
+  if (de[y] !== 1) return new Int32Array(0);
+  const an = ancestorMask(model, g, [y]);
+  const out: number[] = [];
+  for (let k = 0; k < p; k++) {
+    const j = model.topoOrder[g * p + k];
+    if (j !== t && de[j] === 1 && (an[j] === 1 || j === y)) out.push(j);
+  }
+  return Int32Array.from(out);
+}
+
+/**
+ * Outcome of every reference row under each arm in graph g, into out[a*R + r].
+ * `outcomeLevel` (a code) is required for a categorical outcome.
+ */
+export function simulateArms(
+  model: CompiledModel,
+  g: number,
+  t: number,
+  y: number,
+  outcomeLevel: number,
+  arms: readonly ResolvedArm[],
+  scratch: SimulationScratch,
+  out: Float64Array,
+): void {
+  const R = model.nReference;
+  const p = model.p;
+  const ref = model.referenceValues;
+  const work = scratch.work;
+  const affected = affectedNodes(model, g, t, y);
+  const de = descendantMask(model, g, [t]);
+  const yKind = model.kinds[y];
+  const yMech = model.mechanismOf[g * p + y];
+  const tOff = t * R;
+  for (let a = 0; a < arms.length; a++) {
+    const arm = arms[a];
+    // Treatment column.
+    switch (arm.action) {
+      case ARM_OBSERVE:
+        break;
+      case ARM_SET:
+        work.fill(arm.amount, tOff, tOff + R);
+        break;
+      case ARM_SHIFT:
+        for (let r = 0; r < R; r++) work[tOff + r] = ref[tOff + r] + arm.amount;
+        break;
+      case ARM_SCALE:
+        for (let r = 0; r < R; r++) work[tOff + r] = ref[tOff + r] * arm.amount;
+        break;
+      case ARM_POLICY: {
+        for (const v of arm.reads) {
+          if (de[v] === 1 || v === t) {
+            throw new InterventionError(
+              `policy for "${model.names[t]}" reads "${model.names[v]}", a descendant of the treatment in graph ${g}; rules may only read pre-treatment variables`,
+            );
+          }
+        }
+        for (let r = 0; r < R; r++) {
+          let val = arm.otherwise;
+          for (const rule of arm.rules) {
+            let ok = true;
+            for (const c of rule.conditions) if (!conditionHolds(c, ref[c.variable * R + r])) (ok = false);
+            if (ok) {
+              val = rule.value;
+              break;
+            }
+          }
+          work[tOff + r] = val;
+        }
+        break;
+      }
+      default:
+        throw new RangeError(`unknown arm action ${arm.action}`);
+    }
+    // Nodes on a path to the outcome (the outcome itself is handled below).
+    let yAffected = false;
+    for (let k = 0; k < affected.length; k++) {
+      const j = affected[k];
+      if (j === y) {
+        yAffected = true;
+        continue;
+      }
+      const m = model.mechanismOf[g * p + j];
+      mechanismOutput(model, m, work, R, scratch.hidden, scratch.mean);
+      applyNoise(model, j, scratch.mean, model.referenceNoise, m * R, R, work, j * R);
+    }
+    const o = a * R;
+    if (yKind === KIND_CONTINUOUS) {
+      if (yAffected) {
+        mechanismOutput(model, yMech, work, R, scratch.hidden, scratch.mean);
+        const noise = model.referenceNoise;
+        const nOff = yMech * R;
+        for (let r = 0; r < R; r++) out[o + r] = scratch.mean[r] + noise[nOff + r];
+      } else if (y === t) {
+        for (let r = 0; r < R; r++) out[o + r] = work[tOff + r];
+      } else {
+        for (let r = 0; r < R; r++) out[o + r] = ref[y * R + r];
+      }
+    } else {
+      mechanismOutput(model, yMech, work, R, scratch.hidden, scratch.mean);
+      const off = yKind === KIND_CATEGORICAL ? outcomeLevel * R : 0;
+      for (let r = 0; r < R; r++) out[o + r] = scratch.mean[off + r];
+    }
+    // Restore the columns this arm overwrote.
+    for (let k = 0; k < affected.length; k++) {
+      const j = affected[k];
+      work.set(ref.subarray(j * R, (j + 1) * R), j * R);
+    }
+    work.set(ref.subarray(tOff, tOff + R), tOff);
+  }
+}

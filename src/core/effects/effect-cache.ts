@@ -1,0 +1,108 @@
+/**
+ * Per-model query cache: the simulated outcomes of every reference row under each arm, per
+ * graph (the expensive part of a query), and the cross-check scores per adjustment set.
+ * One EffectCache belongs to one compiled model version; the service keeps them in its LRU.
+ * Entries are keyed by (treatment, outcome, outcome level, arms), so a segment or uplift query
+ * after a first ATE on the same contrast reuses the simulation.
+ */
+import type { Frame } from '../frame/frame.js';
+import type { AdjustmentSet } from '../graph/adjustment.js';
+import type { CompiledModel } from '../scm/compiled-model.js';
+import { KIND_CATEGORICAL } from '../scm/compiled-model.js';
+import type { InterventionValue } from '../scm/intervention.js';
+import { InterventionError, valueCode, variableIndexOf } from '../scm/intervention.js';
+import { pathProbability } from '../scm/model-access.js';
+import type { Arm, ResolvedArm } from './arms.js';
+import { armKey, resolveArm } from './arms.js';
+import { simulateArms, simulationScratch, type SimulationScratch } from './counterfactual.js';
+import type { CrossCheckEntry } from './cross-check.js';
+import { computeScores, graphAdjustment, referenceFrame } from './cross-check.js';
+
+/** Simulated outcomes of one (treatment, outcome, arms) contrast. */
+export interface UnitOutcomes {
+  readonly treatment: number;
+  readonly outcome: number;
+  readonly outcomeLevel: number;
+  readonly arms: readonly ResolvedArm[];
+  /** G × A × R outcome per graph, arm and reference row. */
+  readonly values: Float64Array;
+  /** Per graph: 1 if a directed path treatment ⇝ outcome exists. */
+  readonly causalPath: Uint8Array;
+  readonly pathProbability: number;
+}
+
+/** Cache of simulations and cross-checks for one compiled model. */
+export class EffectCache {
+  private readonly units = new Map<string, UnitOutcomes>();
+  private readonly checks = new Map<string, CrossCheckEntry[]>();
+  private readonly scoreMemo = new Map<string, Pick<CrossCheckEntry, 'scores' | 'note'>>();
+  private frame: Frame | null = null;
+  private scratch: SimulationScratch | null = null;
+
+  constructor(readonly model: CompiledModel) {}
+
+  /** Number of cached simulations (for tests and metrics). */
+  get size(): number {
+    return this.units.size;
+  }
+
+  private outcomeCode(y: number, outcomeLevel: InterventionValue | undefined): number {
+    if (this.model.kinds[y] !== KIND_CATEGORICAL) return 0;
+    if (outcomeLevel === undefined) {
+      throw new InterventionError(`outcome "${this.model.names[y]}" is categorical: name the level whose probability is the outcome`);
+    }
+    return valueCode(this.model, y, outcomeLevel);
+  }
+
+  /** Simulated outcomes for the arms (simulating on the first request). */
+  outcomes(treatment: string, outcome: string, arms: readonly Arm[], outcomeLevel?: InterventionValue): UnitOutcomes {
+    const model = this.model;
+    const t = variableIndexOf(model, treatment);
+    const y = variableIndexOf(model, outcome);
+    if (t === y) throw new InterventionError(`treatment and outcome are the same variable "${treatment}"`);
+    const lv = this.outcomeCode(y, outcomeLevel);
+    const key = `${t}|${y}|${lv}|${arms.map(armKey).join('|')}`;
+    const hit = this.units.get(key);
+    if (hit) return hit;
+    const resolved = arms.map((a) => resolveArm(model, t, a));
+    const G = model.nGraphs;
+    const R = model.nReference;
+    const A = resolved.length;
+    const values = new Float64Array(G * A * R);
+    const causal = new Uint8Array(G);
+    if (this.scratch === null) this.scratch = simulationScratch(model);
+    for (let g = 0; g < G; g++) {
+      simulateArms(model, g, t, y, lv, resolved, this.scratch, values.subarray(g * A * R, (g + 1) * A * R));
+    }
+    for (let g = 0; g < G; g++) causal[g] = graphAdjustment(model, g, t, y).causalPath ? 1 : 0;
+    const entry: UnitOutcomes = { treatment: t, outcome: y, outcomeLevel: lv, arms: resolved, values, causalPath: causal, pathProbability: pathProbability(model, t, y) };
+    this.units.set(key, entry);
+    return entry;
+  }
+
+  /** Cross-check per graph for a simulated contrast (computed once, shared by graphs with the same adjustment set). */
+  crossChecks(u: UnitOutcomes): CrossCheckEntry[] {
+    const model = this.model;
+    const key = `${u.treatment}|${u.outcome}|${u.outcomeLevel}|${u.arms.map((a) => `${a.action}:${a.amount}:${a.label}`).join('|')}`;
+    const hit = this.checks.get(key);
+    if (hit) return hit;
+    if (this.frame === null) this.frame = referenceFrame(model);
+    const out: CrossCheckEntry[] = [];
+    for (let g = 0; g < model.nGraphs; g++) {
+      const adj: AdjustmentSet = graphAdjustment(model, g, u.treatment, u.outcome);
+      if (!adj.causalPath) {
+        out.push({ adjustment: adj, scores: null, note: `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero` });
+        continue;
+      }
+      const sKey = `${key}#${adj.set.join(',')}`;
+      let s = this.scoreMemo.get(sKey);
+      if (!s) {
+        s = computeScores(model, this.frame, u.treatment, u.outcome, u.outcomeLevel, u.arms, adj.names);
+        this.scoreMemo.set(sKey, s);
+      }
+      out.push({ adjustment: adj, scores: s.scores, note: s.note });
+    }
+    this.checks.set(key, out);
+    return out;
+  }
+}
