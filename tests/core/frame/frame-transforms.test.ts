@@ -10,6 +10,8 @@ import {
   decodeOneHot,
   continuousMatrix,
   imputeMissing,
+  missingMask,
+  rowMissingMask,
   type Frame,
 } from '../../../src/core/frame/index.js';
 
@@ -139,5 +141,17 @@ describe('imputeMissing', () => {
   it('reports zeros on a complete frame', () => {
     const f = makeFrame([{ name: 'x', kind: 'continuous', values: Float64Array.from([1, 2]) }]);
     expect(imputeMissing(f).report).toEqual({ scheme: 'mean-mode', rowsAffected: 0, cellsAffected: 0 });
+  });
+});
+
+describe('missing masks', () => {
+  it('mark NaN cells per column and per row', () => {
+    const f = makeFrame([
+      { name: 'x', kind: 'continuous', values: Float64Array.from([1, NaN, 3]) },
+      { name: 'c', kind: 'categorical', values: Float64Array.from([0, 1, NaN]) },
+    ]);
+    expect(Array.from(missingMask(f.columns[0]))).toEqual([0, 1, 0]);
+    expect(Array.from(rowMissingMask(f))).toEqual([0, 1, 1]);
+    expect(Array.from(rowMissingMask(f, ['x']))).toEqual([0, 1, 0]);
   });
 });
