@@ -50,7 +50,7 @@ export const NOISE_UNIFORM = 2;
  *  - softmax:           k rows of [b_c, w_c1..w_cnIn]          (k(1 + nIn))
  *  - mlp / mlp-bernoulli (tanh hidden layer, one output):
  *       W1 (h × nIn, row-major), b1 (h), w2 (h), b2 (1)      (h·nIn + 2h + 1)
- * Encoded inputs: parents in ascending index order; a continuous parent contributes one input
+ * Encoded inputs (ENCODING_ADDITIVE): parents in ascending index order; a continuous parent contributes one input
  * (x − centre)/scale, a binary parent one input (0/1), a categorical parent with k levels
  * k−1 indicator inputs for levels 1..k−1 (level 0 is the reference).
  * Continuous outputs are yCentre + yScale · (network or linear output); binary outputs are
@@ -69,7 +69,19 @@ export const MECH_PARENT_COUNT = 9;
 export const MECH_RESID_OFFSET = 10;
 export const MECH_RESID_COUNT = 11;
 export const MECH_N_FIT = 12;
-export const MECH_STRIDE = 13;
+/** ENCODING_ADDITIVE or ENCODING_JOINT_CELLS (see below). */
+export const MECH_ENCODING = 13;
+export const MECH_STRIDE = 14;
+
+/** Inputs are the parents' encodings side by side (no interactions). */
+export const ENCODING_ADDITIVE = 0;
+/**
+ * All parents are discrete and their joint cell is the input: cell = Σ code_a · Π_{b<a} k_b
+ * (mixed radix over the parents in ascending order), encoded as C − 1 indicators for cells
+ * 1..C−1 (cell 0 is the reference). This is the saturated model, a conditional table: used for
+ * nodes with two or more discrete parents and few cells, so interactions are not lost.
+ */
+export const ENCODING_JOINT_CELLS = 1;
 
 /** Columns of one row of `mechScalars` (Float64, SCALAR_STRIDE per mechanism). */
 export const SCALAR_SIGMA = 0;

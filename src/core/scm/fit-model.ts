@@ -11,7 +11,7 @@ import type { ColumnKind, Frame } from '../frame/frame.js';
 import { columnIndex } from '../frame/frame.js';
 import type { Graph } from '../graph/graph.js';
 import { keyHash, MechanismCache } from '../mechanisms/cache.js';
-import { encodeInputs } from '../mechanisms/encode.js';
+import { chooseEncoding, encodeInputs, MAX_JOINT_CELLS } from '../mechanisms/encode.js';
 import { fitMechanism } from '../mechanisms/fit.js';
 import type { FamilyChoice, FittedMechanism, MechanismOptions, NoiseChoice } from '../mechanisms/types.js';
 import { Rng } from '../random/rng.js';
@@ -23,6 +23,7 @@ import {
   KIND_CATEGORICAL,
   KIND_CONTINUOUS,
   kindCode,
+  MECH_ENCODING,
   MECH_FAMILY,
   MECH_HIDDEN,
   MECH_N_FIT,
@@ -76,6 +77,12 @@ export interface FitModelOptions {
   readonly stratifyOn?: readonly string[];
   /** Fine settings of the mechanism fits (ridge, MLP size and training). */
   readonly mechanism?: Omit<MechanismOptions, 'family' | 'noise'>;
+  /**
+   * A node whose parents (two or more) are all discrete gets the saturated joint-cell encoding
+   * (a conditional table, interactions included) when the parents have at most this many joint
+   * cells; 0 turns it off. Default 64.
+   */
+  readonly maxJointCells?: number;
   /** Recorded in the artifact. Default 'learned'. */
   readonly graphSource?: 'learned' | 'fixed';
 }
@@ -166,10 +173,14 @@ export function fitModel(frame: Frame, dagSet: GraphSetInput, options: FitModelO
   const spec = { kinds, nLevels, centre, scale };
   const mechOpts = options.mechanism ?? {};
   const fitted: FittedMechanism[] = [];
+  const encodings: number[] = [];
+  const maxCells = options.maxJointCells ?? MAX_JOINT_CELLS;
   for (const { node, parents, key } of cache.entries) {
     const rows = completeRows(columns, [node, ...parents], frame.nRows);
     if (rows.length === 0) throw new RangeError(`fitModel: no complete rows for "${names[node]}" and its parents`);
-    const x = encodeInputs(spec, columns, parents, rows);
+    const encoding = chooseEncoding(spec, parents, maxCells);
+    encodings.push(encoding);
+    const x = encodeInputs(spec, columns, parents, rows, encoding);
     const y = new Float64Array(rows.length);
     for (let r = 0; r < rows.length; r++) y[r] = columns[node][rows[r]];
     const family = familyFor(options.family, names[node]);
@@ -211,6 +222,7 @@ export function fitModel(frame: Frame, dagSet: GraphSetInput, options: FitModelO
     mechTable[t + MECH_RESID_OFFSET] = ro;
     mechTable[t + MECH_RESID_COUNT] = f.residuals.length;
     mechTable[t + MECH_N_FIT] = f.nFit;
+    mechTable[t + MECH_ENCODING] = encodings[m];
     mechScalars[m * SCALAR_STRIDE + SCALAR_SIGMA] = f.sigma;
     mechScalars[m * SCALAR_STRIDE + SCALAR_Y_CENTRE] = f.yCentre;
     mechScalars[m * SCALAR_STRIDE + SCALAR_Y_SCALE] = f.yScale;

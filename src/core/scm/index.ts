@@ -10,6 +10,7 @@ export {
   counterfactualOutcomes,
   interventionalOutcomes,
   type SimulationBatch,
+  type OutcomeOptions,
   type Units,
 } from './simulate.js';
 export {

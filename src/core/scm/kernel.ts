@@ -10,6 +10,7 @@
  */
 import {
   type CompiledModel,
+  ENCODING_JOINT_CELLS,
   FAMILY_LINEAR,
   FAMILY_LOGISTIC,
   FAMILY_MLP,
@@ -17,6 +18,7 @@ import {
   KIND_BINARY,
   KIND_CATEGORICAL,
   KIND_CONTINUOUS,
+  MECH_ENCODING,
   MECH_FAMILY,
   MECH_HIDDEN,
   MECH_N_IN,
@@ -39,6 +41,21 @@ function accumulate(model: CompiledModel, m: number, values: Float64Array, n: nu
   const P = model.mechParams;
   const pa = t[m * MECH_STRIDE + MECH_PARENT_OFFSET];
   const pc = t[m * MECH_STRIDE + MECH_PARENT_COUNT];
+  if (t[m * MECH_STRIDE + MECH_ENCODING] === ENCODING_JOINT_CELLS) {
+    // Saturated encoding: weight of the unit's joint parent cell (cell 0 is the reference).
+    const base = wOffset - 1;
+    for (let i = 0; i < n; i++) {
+      let cell = 0;
+      let radix = 1;
+      for (let a = 0; a < pc; a++) {
+        const j = model.mechParents[pa + a];
+        cell += radix * values[j * n + i];
+        radix *= model.nLevels[j];
+      }
+      if (cell > 0) out[outOff + i] += P[base + cell];
+    }
+    return;
+  }
   let wi = wOffset;
   for (let a = 0; a < pc; a++) {
     const j = model.mechParents[pa + a];

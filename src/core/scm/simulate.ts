@@ -20,6 +20,7 @@
 import type { Rng } from '../random/rng.js';
 import {
   type CompiledModel,
+  KIND_BINARY,
   KIND_CONTINUOUS,
   MECH_NOISE,
   MECH_RESID_COUNT,
@@ -41,6 +42,7 @@ import {
   type ResolvedIntervention,
   conditionHolds,
   resolveIntervention,
+  valueCode,
 } from './intervention.js';
 import { applyNoise, kernelWidths, mechanismOutput } from './kernel.js';
 import { ancestorMask, descendantMask, orderOf } from './model-access.js';
@@ -54,6 +56,20 @@ export interface SimulationBatch {
 
 /** Which units to simulate: the model's reference rows (abducted noise) or n fresh units. */
 export type Units = 'reference' | number;
+
+/**
+ * How outcomes are reported by counterfactualOutcomes / interventionalOutcomes.
+ *  - `value` (default): the simulated value (level codes for discrete outcomes; 0/1 for binary).
+ *  - `probability`: for a discrete outcome, P(outcome = level | its simulated parents) per unit
+ *    (the mechanism's probability instead of a draw from it: same mean, less Monte Carlo
+ *    noise); for a continuous outcome the same as `value`. An outcome that an arm itself sets
+ *    reports 1 where it equals `level`, else 0.
+ */
+export interface OutcomeOptions {
+  readonly scale?: 'value' | 'probability';
+  /** Level (name or code) whose probability is reported; default code 1 (binary), required for categorical. */
+  readonly level?: string | number;
+}
 
 interface Workspace {
   cap: number;
@@ -172,9 +188,11 @@ export function counterfactualOutcomes(
   arms: readonly (Intervention | ResolvedIntervention)[],
   outcome: string | number,
   rows: Int32Array | 'all' = 'all',
+  options: OutcomeOptions = {},
 ): Float64Array[] {
   checkGraph(model, g);
   const y = outcomeIndex(model, outcome);
+  const level = probabilityLevel(model, y, options);
   const p = model.p;
   const R = model.nReference;
   const n = rows === 'all' ? R : rows.length;
@@ -204,7 +222,7 @@ export function counterfactualOutcomes(
     }
     prepareReference(model, g, iv, relevant, ws);
     runPass(model, g, iv, n, values, noise, ws);
-    results.push(values.slice(y * n, y * n + n));
+    results.push(level < 0 ? values.slice(y * n, y * n + n) : outcomeProbability(model, g, iv, y, level, values, n, ws));
   }
   return results;
 }
@@ -220,10 +238,12 @@ export function interventionalOutcomes(
   outcome: string | number,
   n: number,
   rng: Rng,
+  options: OutcomeOptions = {},
 ): Float64Array[] {
   checkGraph(model, g);
   checkCount(n);
   const y = outcomeIndex(model, outcome);
+  const level = probabilityLevel(model, y, options);
   const p = model.p;
   const ws = workspace(model, n);
   sampleNoise(model, g, n, rng, ws.noise);
@@ -238,12 +258,39 @@ export function interventionalOutcomes(
     ws.compute.set(need);
     ws.useObserved.fill(0);
     runPass(model, g, iv, n, ws.values, ws.noise, ws);
-    results.push(ws.values.slice(y * n, y * n + n));
+    results.push(level < 0 ? ws.values.slice(y * n, y * n + n) : outcomeProbability(model, g, iv, y, level, ws.values, n, ws));
   }
   return results;
 }
 
 // ---------------------------------------------------------------------------------------------
+
+/** The level code whose probability is reported, or −1 for plain values. */
+function probabilityLevel(model: CompiledModel, y: number, options: OutcomeOptions): number {
+  if ((options.scale ?? 'value') === 'value' || model.kinds[y] === KIND_CONTINUOUS) return -1;
+  if (options.level === undefined) {
+    if (model.kinds[y] === KIND_BINARY) return 1;
+    throw new InterventionError(`outcome "${model.names[y]}" is categorical: name the level whose probability you want`);
+  }
+  return valueCode(model, y, options.level);
+}
+
+/** P(y = level | simulated parents) per unit, from the values of a finished pass. */
+function outcomeProbability(model: CompiledModel, g: number, iv: ResolvedIntervention, y: number, level: number, values: Float64Array, n: number, ws: Workspace): Float64Array {
+  const out = new Float64Array(n);
+  const col = y * n;
+  if (iv.action[y] !== ACT_NONE) {
+    for (let i = 0; i < n; i++) out[i] = values[col + i] === level ? 1 : 0;
+    return out;
+  }
+  mechanismOutput(model, model.mechanismOf[g * model.p + y], values, n, ws.scratch, ws.mean);
+  if (model.kinds[y] === KIND_BINARY) {
+    for (let i = 0; i < n; i++) out[i] = level === 1 ? ws.mean[i] : 1 - ws.mean[i];
+  } else {
+    for (let i = 0; i < n; i++) out[i] = ws.mean[level * n + i];
+  }
+  return out;
+}
 
 function runPass(model: CompiledModel, g: number, iv: ResolvedIntervention, n: number, values: Float64Array, noise: Float64Array, ws: Workspace): void {
   const p = model.p;
