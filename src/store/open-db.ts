@@ -16,6 +16,8 @@ export interface OpenDbOptions {
   schema?: string;
   /** pg pool size. Default 10. */
   poolSize?: number;
+  /** PGlite only: CSV bytes per COPY statement of a bulk load (tests lower it). Default 8 MiB. */
+  copyChunkBytes?: number;
 }
 
 const SCHEMA_NAME = /^[a-z_][a-z0-9_]{0,62}$/;
@@ -39,7 +41,7 @@ export async function openDb(options: OpenDbOptions = {}): Promise<Db> {
   }
   const dataDir = options.dataDir ?? './.fulcrum';
   await mkdir(dataDir, { recursive: true });
-  return createPgliteDb({ dataDir, schema });
+  return createPgliteDb({ dataDir, schema, copyChunkBytes: options.copyChunkBytes });
 }
 
 /** Drop a schema made by `openDb({schema})` with everything in it (test clean-up). */

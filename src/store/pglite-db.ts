@@ -15,7 +15,13 @@ async function runQuery<T>(q: Runner, sql: string, params?: unknown[]): Promise<
   return { rows: r.rows, rowCount: r.rowCount ?? r.affectedRows ?? r.rows.length };
 }
 
-async function copyChunks(q: Runner, table: string, columns: readonly string[], source: AsyncIterable<string>): Promise<number> {
+async function copyChunks(
+  q: Runner,
+  table: string,
+  columns: readonly string[],
+  source: AsyncIterable<string>,
+  chunkBytes: number,
+): Promise<number> {
   const sql = copyStatement(table, columns, `'/dev/blob'`);
   let parts: string[] = [];
   let bytes = 0;
@@ -31,18 +37,18 @@ async function copyChunks(q: Runner, table: string, columns: readonly string[], 
   for await (const chunk of source) {
     parts.push(chunk);
     bytes += chunk.length;
-    if (bytes >= PGLITE_COPY_CHUNK_BYTES) await flush();
+    if (bytes >= chunkBytes) await flush();
   }
   await flush();
   return total;
 }
 
-function txDb(tx: Transaction): Db {
+function txDb(tx: Transaction, chunkBytes: number): Db {
   const self: Db = {
     kind: 'pglite',
     query: (sql, params) => runQuery(tx, sql, params),
     transaction: (fn) => fn(self),
-    bulkLoad: (table, columns, source) => copyChunks(tx, table, columns, source),
+    bulkLoad: (table, columns, source) => copyChunks(tx, table, columns, source, chunkBytes),
     close: async () => {},
   };
   return self;
@@ -54,6 +60,8 @@ export interface PgliteDbOptions {
   dataDir: string;
   /** Created if missing and set as search_path (tests isolate themselves with it). */
   schema?: string;
+  /** CSV bytes per COPY statement. Default PGLITE_COPY_CHUNK_BYTES. */
+  copyChunkBytes?: number;
 }
 
 /** A Db backed by an embedded PGlite instance in `dataDir`. */
@@ -62,13 +70,14 @@ export async function createPgliteDb(options: PgliteDbOptions): Promise<Db> {
   if (options.schema) {
     await pg.exec(`CREATE SCHEMA IF NOT EXISTS "${options.schema}"; SET search_path TO "${options.schema}"`);
   }
+  const chunkBytes = options.copyChunkBytes ?? PGLITE_COPY_CHUNK_BYTES;
   let closed = false;
   return {
     kind: 'pglite',
     query: (sql, params) => runQuery(pg, sql, params),
-    transaction: (fn) => pg.transaction((tx) => fn(txDb(tx))),
+    transaction: (fn) => pg.transaction((tx) => fn(txDb(tx, chunkBytes))),
     // Outside a transaction the chunks still load atomically: wrap them in one.
-    bulkLoad: (table, columns, source) => pg.transaction((tx) => copyChunks(tx, table, columns, source)),
+    bulkLoad: (table, columns, source) => pg.transaction((tx) => copyChunks(tx, table, columns, source, chunkBytes)),
     async close() {
       if (closed) return;
       closed = true;
