@@ -30,8 +30,9 @@ export interface MlpMechanism {
  * Gaussian-process-like random smooth function by random Fourier features (Rahimi & Recht
  * 2007): f(x) = amp·√(2/K) Σ_k a_k cos(ω_k·x + b_k) with a_k ~ N(0, 1), ω_k ~ N(0, I/ℓ²),
  * b_k ~ U(0, 2π). As K grows this is a draw from a GP with squared-exponential kernel of
- * length-scale ℓ and variance amp². We take ℓ = 1 and amp² = number of inputs, so, like a
- * linear mechanism, the signal variance grows with the number of parents.
+ * length-scale ℓ and variance amp². Defaults ℓ = 1 and amp = 1: a joint (not additive) GP
+ * draw over all parents with unit bandwidth, the kind of "random smooth" mechanism used in
+ * nonlinear structure-learning benchmarks (e.g. Lachapelle et al. 2020; from memory).
  */
 export interface SmoothMechanism {
   readonly family: 'smooth';
@@ -54,6 +55,8 @@ export interface MechanismOptions {
   readonly features?: number;
   /** Length-scale ℓ of 'smooth' (default 1). */
   readonly lengthScale?: number;
+  /** Amplitude (GP standard deviation) of 'smooth' (default 1). */
+  readonly amplitude?: number;
 }
 
 /** Uniform in ±[0.5, 2]: magnitude U(0.5, 2) with a random sign. */
@@ -86,7 +89,7 @@ export function randomMechanism(family: MechanismFamily, inDim: number, rng: Rng
       for (let i = 0; i < omega.length; i++) omega[i] = rng.normal() / ell;
       const phase = new Float64Array(k);
       const coef = new Float64Array(k);
-      const amp = Math.sqrt(Math.max(1, inDim));
+      const amp = options.amplitude ?? 1;
       const c = amp * Math.sqrt(2 / k);
       for (let f = 0; f < k; f++) {
         phase[f] = 2 * Math.PI * rng.uniform();

@@ -1,0 +1,232 @@
+/**
+ * Discovery benchmark: `npm run bench:discovery [-- --quick]`.
+ *
+ * Per configuration and learner: median over seeds of SHD, adjacency F1, orientation F1 and
+ * seconds, beside the R²-sort-and-regress baseline (bench/baselines/r2-sort-regress.ts) and
+ * the empty graph. Simulated data are standardised before learning (Reisach, Seiler &
+ * Weichwald 2021). Also the Sachs et al. (2005) protein data and three speed runs.
+ * Writes bench/results/discovery.json and prints a markdown table for docs/benchmarks.md.
+ */
+import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
+import { execSync } from 'node:child_process';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { makeFrame, type Frame } from '../src/core/frame/frame.js';
+import { standardise } from '../src/core/frame/standardise.js';
+import { edgeScores } from '../src/core/graph/index.js';
+import { emptyGraph, graphFromEdges, type Graph } from '../src/core/graph/graph.js';
+import { learn } from '../src/core/discovery/learn.js';
+import { availableLearners } from '../src/core/discovery/registry.js';
+import { runBootstrap } from '../src/core/discovery/bootstrap.js';
+import { generateDataset, type SyntheticConfig } from '../src/core/synthetic/index.js';
+import { r2SortRegress } from './baselines/r2-sort-regress.js';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const quick = process.argv.includes('--quick');
+const only = (() => {
+  const i = process.argv.indexOf('--only');
+  return i >= 0 ? process.argv[i + 1].split(',') : null;
+})();
+const seeds = quick ? [1, 2] : [1, 2, 3, 4, 5];
+const available = availableLearners();
+
+interface Config {
+  readonly id: string;
+  readonly label: string;
+  readonly data: SyntheticConfig;
+  readonly learners: readonly string[];
+}
+
+const configs: Config[] = [
+  {
+    id: 'mlp-er20',
+    label: 'nonlinear MLP, ER d=20, 40 edges, n=2000, Gaussian noise',
+    data: { graph: 'er', nodes: 20, expectedEdges: 40, rows: 2000, mechanism: 'mlp', noise: 'gaussian' },
+    learners: ['mlp-notears', 'pc', 'linear-notears', 'direct-lingam'],
+  },
+  {
+    id: 'smooth-er10',
+    // Noise variance 0.5: inside the range used for GP-mechanism data by Lachapelle et al. 2020 (from memory).
+    label: 'random smooth (RFF-GP), ER d=10, 40 edges, n=1000, Gaussian noise sd 0.71',
+    data: { graph: 'er', nodes: 10, expectedEdges: 40, rows: 1000, mechanism: 'smooth', noise: 'gaussian', noiseScale: Math.SQRT1_2 },
+    learners: ['mlp-notears', 'pc', 'linear-notears', 'direct-lingam'],
+  },
+  {
+    id: 'linear-uniform-er20',
+    label: 'linear, uniform noise, ER d=20, 40 edges, n=2000',
+    data: { graph: 'er', nodes: 20, expectedEdges: 40, rows: 2000, mechanism: 'linear', noise: 'uniform' },
+    learners: ['direct-lingam', 'linear-notears', 'pc'],
+  },
+];
+
+interface Record {
+  config: string;
+  learner: string;
+  shd: number;
+  adj_f1: number;
+  orient_f1: number;
+  seconds: number;
+  seeds: number;
+  edges?: number;
+  error?: string;
+}
+
+function median(v: number[]): number {
+  const s = [...v].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+function edgeCount(g: Graph): number {
+  let e = 0;
+  for (let i = 0; i < g.n; i++) for (let j = 0; j < g.n; j++) if (g.adj[i * g.n + j] && (i < j || !g.adj[j * g.n + i])) e++;
+  return e;
+}
+
+function runOne(learner: string, frame: Frame, seed: number): { graph: Graph; seconds: number } {
+  const t0 = performance.now();
+  let graph: Graph;
+  if (learner === 'r2-sort-regress') graph = r2SortRegress(frame);
+  else if (learner === 'empty') graph = emptyGraph(frame.columns.map((c) => c.name));
+  else graph = learn(frame, {}, { learner: learner as 'pc', seed }).graph;
+  return { graph, seconds: (performance.now() - t0) / 1000 };
+}
+
+const records: Record[] = [];
+const log = (s: string) => process.stderr.write(s + '\n');
+const load = () => execSync('uptime').toString().trim();
+log(`start: ${load()}`);
+
+for (const cfg of configs) {
+  if (only && !only.includes(cfg.id)) continue;
+  const data = seeds.map((s) => generateDataset(cfg.data, 1000 + s));
+  const learners = [...cfg.learners.filter((l) => available.has(l as 'pc')), 'r2-sort-regress', 'empty'];
+  for (const learner of learners) {
+    const shd: number[] = [];
+    const adj: number[] = [];
+    const ori: number[] = [];
+    const sec: number[] = [];
+    let error: string | undefined;
+    for (let k = 0; k < seeds.length; k++) {
+      try {
+        const { graph, seconds } = runOne(learner, data[k].frame, seeds[k]);
+        const sc = edgeScores(graph, data[k].graph);
+        shd.push(sc.shd);
+        adj.push(sc.adjF1);
+        ori.push(sc.orientF1);
+        sec.push(seconds);
+      } catch (e) {
+        error = (e as Error).message;
+        break;
+      }
+    }
+    const rec: Record = error
+      ? { config: cfg.id, learner, shd: NaN, adj_f1: NaN, orient_f1: NaN, seconds: NaN, seeds: 0, error }
+      : { config: cfg.id, learner, shd: median(shd), adj_f1: median(adj), orient_f1: median(ori), seconds: median(sec), seeds: seeds.length };
+    records.push(rec);
+    log(`${cfg.id} ${learner}: ${JSON.stringify(rec)}`);
+  }
+}
+
+// Sachs et al. (2005): CD3/CD28 observational condition, 853 rows, log-transformed then standardised.
+const sachs: { [learner: string]: { shd: number; edges: number } } = {};
+if (!only || only.includes('sachs')) {
+  const dir = join(here, '..', '..', 'shared', 'data', 'sachs2005');
+  const root = process.env.SACHS_DIR ?? (tryRead(join(dir, 'sachs2005_cd3cd28_observational.csv')) ? dir : '/work/shared/data/sachs2005');
+  const rows = readFileSync(join(root, 'sachs2005_cd3cd28_observational.csv'), 'utf8').trim().split('\n');
+  const names = rows[0].split(',');
+  const cols = names.map(() => new Float64Array(rows.length - 1));
+  for (let r = 1; r < rows.length; r++) {
+    const v = rows[r].split(',');
+    for (let c = 0; c < names.length; c++) cols[c][r - 1] = Math.log(Number(v[c]));
+  }
+  const frame = standardise(makeFrame(names.map((name, c) => ({ name, kind: 'continuous' as const, values: cols[c] })))).frame;
+  const truthEdges = readFileSync(join(root, 'sachs2005_ground_truth_edges_20.csv'), 'utf8')
+    .trim()
+    .split('\n')
+    .slice(1)
+    .map((l) => l.split(',') as [string, string]);
+  const truth = graphFromEdges(names, truthEdges);
+  const learners = [...['pc', 'direct-lingam', 'linear-notears', 'mlp-notears'].filter((l) => available.has(l as 'pc')), 'r2-sort-regress', 'empty'];
+  for (const learner of learners) {
+    try {
+      const { graph, seconds } = runOne(learner, frame, 1);
+      const sc = edgeScores(graph, truth);
+      const rec: Record = { config: 'sachs', learner, shd: sc.shd, adj_f1: sc.adjF1, orient_f1: sc.orientF1, seconds, seeds: 1, edges: edgeCount(graph) };
+      records.push(rec);
+      sachs[learner] = { shd: sc.shd, edges: rec.edges as number };
+      log(`sachs ${learner}: ${JSON.stringify(rec)}`);
+    } catch (e) {
+      records.push({ config: 'sachs', learner, shd: NaN, adj_f1: NaN, orient_f1: NaN, seconds: NaN, seeds: 0, error: (e as Error).message });
+    }
+  }
+}
+
+function tryRead(p: string): boolean {
+  try {
+    readFileSync(p);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+// Speed runs.
+interface Speed {
+  run: string;
+  learner: string;
+  seconds: number;
+  limit: number;
+  note?: string;
+}
+const speed: Speed[] = [];
+const nonlinear = available.has('mlp-notears') ? 'mlp-notears' : null;
+if (!only || only.includes('speed')) {
+  if (nonlinear) {
+    const ds = generateDataset(configs[0].data, 77);
+    const { seconds } = runOne(nonlinear, ds.frame, 1);
+    speed.push({ run: 'one nonlinear replicate, d=20, n=2000', learner: nonlinear, seconds, limit: 60 });
+    log(JSON.stringify(speed[speed.length - 1]));
+  }
+  if (available.has('linear-notears')) {
+    const ds = generateDataset({ graph: 'er', nodes: 100, expectedEdges: 200, rows: 5000, mechanism: 'linear', noise: 'gaussian' }, 78);
+    const { graph, seconds } = runOne('linear-notears', ds.frame, 1);
+    const sc = edgeScores(graph, ds.graph);
+    speed.push({ run: 'linear learner, ER d=100 (200 edges), n=5000', learner: 'linear-notears', seconds, limit: 60, note: `shd ${sc.shd}` });
+    log(JSON.stringify(speed[speed.length - 1]));
+  }
+  if (nonlinear && !quick) {
+    const ds = generateDataset(configs[0].data, 79);
+    const t0 = performance.now();
+    const set = await runBootstrap(ds.frame, {}, { learner: nonlinear as 'mlp-notears' }, { replicates: 20, seed: 1, threads: 2 });
+    const seconds = (performance.now() - t0) / 1000;
+    speed.push({ run: '20-replicate nonlinear ensemble, d=20, n=2000, 2 threads', learner: nonlinear, seconds, limit: 600, note: `${set.graphs.length} distinct DAGs` });
+    log(JSON.stringify(speed[speed.length - 1]));
+  }
+}
+const loadAfter = load();
+log(`end: ${loadAfter}`);
+
+const fmt = (v: number, d = 2) => (Number.isFinite(v) ? v.toFixed(d) : '—');
+const lines: string[] = [];
+lines.push(`Median over ${seeds.length} seeds (${quick ? 'quick run' : 'full run'}); data standardised before learning. Load: \`${loadAfter}\` (2 cores shared with other work: seconds are pessimistic).`);
+lines.push('');
+lines.push('| configuration | learner | SHD | adjacency F1 | orientation F1 | seconds |');
+lines.push('| --- | --- | ---: | ---: | ---: | ---: |');
+for (const r of records) {
+  const label = r.config === 'sachs' ? `Sachs et al. 2005 (853 rows, 20-edge consensus; learned edges ${r.edges ?? '—'})` : (configs.find((c) => c.id === r.config)?.label ?? r.config);
+  lines.push(`| ${label} | ${r.learner}${r.error ? ` (failed: ${r.error.slice(0, 60)})` : ''} | ${fmt(r.shd, r.config === 'sachs' ? 0 : 1)} | ${fmt(r.adj_f1)} | ${fmt(r.orient_f1)} | ${fmt(r.seconds, 1)} |`);
+}
+if (speed.length) {
+  lines.push('');
+  lines.push('| speed run | learner | seconds | limit | note |');
+  lines.push('| --- | --- | ---: | ---: | --- |');
+  for (const s of speed) lines.push(`| ${s.run} | ${s.learner} | ${fmt(s.seconds, 1)} | ${s.limit} | ${s.note ?? ''} |`);
+}
+console.log(lines.join('\n'));
+
+mkdirSync(join(here, 'results'), { recursive: true });
+writeFileSync(
+  join(here, 'results', 'discovery.json'),
+  JSON.stringify({ generated: new Date().toISOString(), quick, seeds, load: loadAfter, records, sachs, speed }, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2) + '\n',
+);
