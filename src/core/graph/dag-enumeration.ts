@@ -111,9 +111,9 @@ export function sampleDag(cpdag: Graph, rng: Rng): Graph {
       }
     }
     const subGraph: Graph = { n: m, names: nodes.map((v) => cpdag.names[v]), adj: sub };
-    const all = enumerateDags(subGraph, UNIFORM_LIMIT, { strict: true });
+    const all = componentOrientations(subGraph);
     let chosen: Uint8Array | null;
-    if (all.length > 0 && all.length < UNIFORM_LIMIT) chosen = all[rng.int(all.length)].adj;
+    if (all.length > 0 && all.length < UNIFORM_LIMIT) chosen = all[rng.int(all.length)];
     else chosen = randomExtension(sub, m, 0, subGraph.names, rng);
     if (chosen === null) break;
     for (let a = 0; a < m; a++) {
@@ -194,6 +194,21 @@ export function extendToDag(pdag: Graph, rng?: Rng): { dag: Graph; consistent: b
     }
   }
   return { dag: { n, names: pdag.names, adj: out }, consistent };
+}
+
+// Orientations of recently seen chain components, keyed by their adjacency: a caller that draws
+// many DAGs from one CPDAG enumerates each component once. Pure cache; bounded in size.
+const componentCache = new Map<string, Uint8Array[]>();
+const COMPONENT_CACHE_SIZE = 32;
+
+function componentOrientations(sub: Graph): Uint8Array[] {
+  const k = `${sub.n}:${sub.adj.join('')}`;
+  const hit = componentCache.get(k);
+  if (hit !== undefined) return hit;
+  const all = enumerateDags(sub, UNIFORM_LIMIT, { strict: true }).map((g) => g.adj);
+  if (componentCache.size >= COMPONENT_CACHE_SIZE) componentCache.delete(componentCache.keys().next().value as string);
+  componentCache.set(k, all);
+  return all;
 }
 
 function randomExtension(start: Uint8Array, n: number, baseV: number, names: readonly string[], rng: Rng): Uint8Array | null {
