@@ -47,7 +47,7 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
   const service = createDatasetsService(db);
   const uploadLimit = config.FULCRUM_UPLOAD_LIMIT_BYTES;
   installCsvBody(app, uploadLimit);
-  await app.register(multipart, { throwFileSizeLimit: true, limits: { fileSize: uploadLimit, files: 1 } });
+  await app.register(multipart, { throwFileSizeLimit: true, limits: { fileSize: uploadLimit + 1, files: 1 } });
 
   const unsupported = (mediaType: string) =>
     apiError('ERR_REQUEST_UNSUPPORTED_MEDIA_TYPE', { contentType: mediaType || '(none)', accepted: UPLOAD_MEDIA_TYPES.join(', ') });

@@ -90,7 +90,9 @@ export async function csvUpload(request: FastifyRequest, uploadLimit: number): P
   if (mediaTypeOf(request) === 'text/csv') {
     return { body: limitBytes(request.body as Readable, uploadLimit) };
   }
-  const file = await request.file({ limits: { fileSize: uploadLimit, files: 1, fields: 10, fieldSize: 200_000 } });
+  // One byte past the limit reaches the ByteLimit, which then refuses the upload (busboy would
+  // otherwise cut the file at the limit silently).
+  const file = await request.file({ limits: { fileSize: uploadLimit + 1, files: 1, fields: 10, fieldSize: 200_000 } });
   if (!file) throw apiError('ERR_REQUEST_MULTIPART_NO_FILE');
   return {
     body: limitBytes(file.file, uploadLimit),
