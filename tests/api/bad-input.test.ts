@@ -3,6 +3,7 @@
  * message naming the row/column, and leaves the database exactly as it was (no partial write).
  */
 import { Readable } from 'node:stream';
+import type { InjectOptions } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { announceBackends, backends, bearer, HOUSEHOLDS_CSV, snapshot, startTestApp, type TestApp } from './helpers/test-app.js';
 
@@ -61,7 +62,7 @@ describe.each(backends())('bad input on %s', (backend) => {
 
   interface Case {
     name: string;
-    request: () => Parameters<TestApp['app']['inject']>[0];
+    request: () => InjectOptions;
     status: number;
     type: string;
     /** Fragments the human message must contain (row, column…). */
