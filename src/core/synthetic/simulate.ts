@@ -1,3 +1,4 @@
+import { ancestors } from '../graph/reachability.js';
 import { makeFrame, type Column, type Frame } from '../frame/frame.js';
 import { Rng } from '../random/rng.js';
 import { evaluateMechanism } from './mechanisms.js';
@@ -10,15 +11,20 @@ import type { SyntheticScm } from './scm.js';
  */
 export interface SimulationBuffers {
   readonly n: number;
+  /** Rows simulated at a time (scratch is sized for one chunk, not for n). */
+  readonly chunk: number;
   /** One output column per node. The Frame returned by simulate() views these arrays. */
   readonly columns: Float64Array[];
-  /** n × (max input width), row-major mechanism inputs. */
+  /** chunk × (max input width), row-major mechanism inputs. */
   readonly input: Float64Array;
-  /** n × (max categorical levels): per-mechanism outputs. */
+  /** chunk × (max categorical levels): per-mechanism outputs. */
   readonly work: Float64Array;
-  /** n: noise or uniform draws. */
+  /** chunk: noise or uniform draws. */
   readonly draws: Float64Array;
 }
+
+/** Rows per chunk: scratch stays small (a few MB) however many rows are drawn. */
+const CHUNK = 8192;
 
 /** Allocate buffers for simulating n rows of `scm`. */
 export function createSimulationBuffers(scm: SyntheticScm, n: number): SimulationBuffers {
@@ -31,7 +37,8 @@ export function createSimulationBuffers(scm: SyntheticScm, n: number): Simulatio
   }
   const columns: Float64Array[] = [];
   for (let j = 0; j < scm.nodes.length; j++) columns.push(new Float64Array(n));
-  return { n, columns, input: new Float64Array(n * maxIn), work: new Float64Array(n * maxMech), draws: new Float64Array(n) };
+  const c = Math.max(1, Math.min(n, CHUNK));
+  return { n, chunk: c, columns, input: new Float64Array(c * maxIn), work: new Float64Array(c * maxMech), draws: new Float64Array(c) };
 }
 
 /** A hard intervention do(X = value) by variable name (binary: 0/1; categorical: level code). */
@@ -49,8 +56,20 @@ export function simulate(scm: SyntheticScm, n: number, rng: Rng, buffers?: Simul
   return simulateDo(scm, {}, n, rng, buffers);
 }
 
-/** Draw n rows under hard interventions do(X = a, …) (see {@link simulate} for randomness and buffers). */
-export function simulateDo(scm: SyntheticScm, interventions: HardInterventions, n: number, rng: Rng, buffers?: SimulationBuffers): Frame {
+/**
+ * Draw n rows under hard interventions do(X = a, …) (see {@link simulate} for randomness and
+ * buffers). With `targets`, only the targets and their ancestors are simulated (other columns
+ * are NaN): a true ATE on one outcome then skips every node that cannot affect it. The
+ * simulated columns are identical to a full draw, since each node has its own stream.
+ */
+export function simulateDo(
+  scm: SyntheticScm,
+  interventions: HardInterventions,
+  n: number,
+  rng: Rng,
+  buffers?: SimulationBuffers,
+  targets?: readonly string[],
+): Frame {
   const d = scm.nodes.length;
   const buf = buffers ?? createSimulationBuffers(scm, n);
   if (buf.n !== n || buf.columns.length !== d) throw new RangeError(`simulation buffers hold ${buf.n} rows of ${buf.columns.length} nodes, asked for ${n} rows of ${d}`);
@@ -66,11 +85,31 @@ export function simulateDo(scm: SyntheticScm, interventions: HardInterventions, 
     }
     forced[j] = v;
   }
+  const needed = new Uint8Array(d).fill(1);
+  if (targets) {
+    needed.fill(0);
+    for (const name of targets) {
+      const j = scm.nodes.findIndex((nd) => nd.name === name);
+      if (j < 0) throw new RangeError(`unknown target variable "${name}"`);
+      const anc = ancestors(scm.graph, j);
+      needed[j] = 1;
+      for (let i = 0; i < d; i++) if (anc[i]) needed[i] = 1;
+    }
+    for (let j = 0; j < d; j++) if (!needed[j]) buf.columns[j].fill(NaN);
+  }
   const base = Rng.create(rng.nextU32());
-  for (let t = 0; t < d; t++) {
-    const j = scm.order[t];
-    if (!Number.isNaN(forced[j])) buf.columns[j].fill(forced[j]);
-    else simulateNode(scm, j, n, buf, base.stream(j));
+  const streams: Rng[] = [];
+  for (let j = 0; j < d; j++) streams.push(base.stream(j));
+  // Row chunks, each through all nodes in causal order. A node's stream is consumed in row
+  // order across chunks, so the draws are the same as in one pass over all n rows.
+  for (let off = 0; off < n; off += buf.chunk) {
+    const len = Math.min(buf.chunk, n - off);
+    for (let t = 0; t < d; t++) {
+      const j = scm.order[t];
+      if (!needed[j]) continue;
+      if (!Number.isNaN(forced[j])) buf.columns[j].fill(forced[j], off, off + len);
+      else simulateNode(scm, j, off, len, buf, streams[j]);
+    }
   }
   const columns: Column[] = scm.nodes.map((node, j) => {
     const values = buf.columns[j];
@@ -82,15 +121,15 @@ export function simulateDo(scm: SyntheticScm, interventions: HardInterventions, 
   return makeFrame(columns);
 }
 
-/** Gather node j's mechanism input (n × inDim) from its parents' columns. */
-function gatherInput(scm: SyntheticScm, j: number, n: number, buf: SimulationBuffers): void {
+/** Gather node j's mechanism input (len × inDim) for rows off..off+len from its parents' columns. */
+function gatherInput(scm: SyntheticScm, j: number, off0: number, n: number, buf: SimulationBuffers): void {
   const node = scm.nodes[j];
   const p = node.inDim;
   const x = buf.input;
   let off = 0;
   for (let q = 0; q < node.parents.length; q++) {
     const i = node.parents[q];
-    const col = buf.columns[i];
+    const col = buf.columns[i].subarray(off0, off0 + n);
     const par = scm.nodes[i];
     if (par.kind === 'categorical') {
       const w = par.levels - 1;
@@ -108,11 +147,11 @@ function gatherInput(scm: SyntheticScm, j: number, n: number, buf: SimulationBuf
   }
 }
 
-/** Simulate one node from its (already simulated) parents; `nodeRng` is the node's own stream. */
-export function simulateNode(scm: SyntheticScm, j: number, n: number, buf: SimulationBuffers, nodeRng: Rng): void {
+/** Simulate rows off..off+n of one node from its (already simulated) parents; `nodeRng` is the node's own stream. */
+export function simulateNode(scm: SyntheticScm, j: number, off: number, n: number, buf: SimulationBuffers, nodeRng: Rng): void {
   const node = scm.nodes[j];
-  const out = buf.columns[j];
-  gatherInput(scm, j, n, buf);
+  const out = buf.columns[j].subarray(off, off + n);
+  gatherInput(scm, j, off, n, buf);
   if (node.kind === 'continuous') {
     evaluateMechanism(node.mechanisms[0], buf.input, n, out);
     fillNoise(node.noise, nodeRng, buf.draws, n);
@@ -165,13 +204,14 @@ export function simulateNode(scm: SyntheticScm, j: number, n: number, buf: Simul
 export function centreDiscreteNodes(scm: SyntheticScm, rng: Rng, pilotRows = 2000): void {
   const n = pilotRows;
   const buf = createSimulationBuffers(scm, n);
+  if (buf.chunk < n) throw new RangeError(`pilotRows must be at most ${CHUNK}`);
   const base = Rng.create(rng.nextU32());
   const sorted = new Float64Array(n);
   for (let t = 0; t < scm.order.length; t++) {
     const j = scm.order[t];
     const node = scm.nodes[j];
     if (node.kind !== 'continuous' && node.inDim > 0) {
-      gatherInput(scm, j, n, buf);
+      gatherInput(scm, j, 0, n, buf);
       for (let m = 0; m < node.mechanisms.length; m++) {
         evaluateMechanism(node.mechanisms[m], buf.input, n, sorted);
         if (node.kind === 'binary') {
@@ -184,6 +224,6 @@ export function centreDiscreteNodes(scm: SyntheticScm, rng: Rng, pilotRows = 200
         }
       }
     }
-    simulateNode(scm, j, n, buf, base.stream(j));
+    simulateNode(scm, j, 0, n, buf, base.stream(j));
   }
 }

@@ -40,6 +40,18 @@ describe('simulate (linear Gaussian SCM)', () => {
     for (const v of dof.columns[2].values) mc += v;
     // c = w_bc·b + w_zc·z + e with E z = E e = 0; sd of c given do(b) is √(w_zc² + 1) ≤ √5, so the mean's sd < 0.01.
     expect(mc / n).toBeCloseTo(2 * w(2)[0], 1);
+    // Only the ancestors of a target: same values for the target, NaN for a non-ancestor.
+    const part = simulateDo(scm, { b: 2 }, n, Rng.create(23), undefined, ['b']);
+    expect(part.columns[1].values.every((v) => v === 2)).toBe(true);
+    expect(Number.isNaN(part.columns[2].values[0])).toBe(true);
+    const partC = simulateDo(scm, { b: 2 }, 1000, Rng.create(23), undefined, ['c']);
+    expect(Array.from(partC.columns[2].values)).toEqual(Array.from(simulateDo(scm, { b: 2 }, 1000, Rng.create(23)).columns[2].values));
+  });
+
+  it('draws the same rows whatever n: the first 100 of 20 000 (three chunks) equal a 100-row draw', () => {
+    const big = simulate(scm, 20_000, Rng.create(6));
+    const small = simulate(scm, 100, Rng.create(6));
+    for (let j = 0; j < 4; j++) expect(Array.from(big.columns[j].values.subarray(0, 100))).toEqual(Array.from(small.columns[j].values));
   });
 
   it('is deterministic given the seed and rejects bad interventions', () => {
