@@ -30,7 +30,8 @@ export function softplus(z: number): number {
  * reweighted least squares; Nelder & Wedderburn 1972) on the ridge-penalised
  * log-likelihood ℓ(b, β) − (λ/2)‖β‖², with step halving when the penalised objective would
  * decrease. With λ > 0 the objective is strictly concave, so the estimate stays finite even
- * when the classes are perfectly separated. y holds 0/1 values.
+ * when the classes are perfectly separated. y holds 0/1 values (fractions in [0, 1] act as
+ * proportions); anything else, including NaN, is a RangeError.
  */
 export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOptions = {}): LogisticResult {
   const n = x.rows;
@@ -50,7 +51,11 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
 
   // Start the intercept at the log-odds of the mean response.
   let ybar = 0;
-  for (let r = 0; r < n; r++) ybar += y[r];
+  for (let r = 0; r < n; r++) {
+    const v = y[r];
+    if (!(v >= 0 && v <= 1)) throw new RangeError(`logisticRegression: y[${r}] = ${v} is not in [0, 1]`);
+    ybar += v;
+  }
   ybar = n > 0 ? Math.min(1 - 1e-6, Math.max(1e-6, ybar / n)) : 0.5;
   theta[0] = Math.log(ybar / (1 - ybar));
 

@@ -69,6 +69,11 @@ describe('logisticRegression', () => {
     expect(fit.logLik).toBeLessThan(0);
     expect(fit.logLik).toBeGreaterThan(-0.1);
   });
+
+  it('rejects a response outside [0, 1] or missing', () => {
+    expect(() => logisticRegression(fromRows([[1], [2]]), Float64Array.from([0, NaN]))).toThrow(RangeError);
+    expect(() => logisticRegression(fromRows([[1], [2]]), Float64Array.from([0, 2]))).toThrow(RangeError);
+  });
 });
 
 describe('softmaxRegression', () => {
