@@ -55,7 +55,7 @@ const configs: Config[] = [
     id: 'linear-uniform-er20',
     label: 'linear, uniform noise, ER d=20, 40 edges, n=2000',
     data: { graph: 'er', nodes: 20, expectedEdges: 40, rows: 2000, mechanism: 'linear', noise: 'uniform' },
-    learners: ['direct-lingam', 'linear-notears', 'pc'],
+    learners: ['direct-lingam', 'linear-notears', 'pc', 'auto'],
   },
 ];
 
@@ -68,6 +68,8 @@ interface Record {
   seconds: number;
   seeds: number;
   edges?: number;
+  /** For 'auto': the learner it chose on each seed. */
+  chose?: string[];
   error?: string;
 }
 
@@ -83,13 +85,18 @@ function edgeCount(g: Graph): number {
   return e;
 }
 
-function runOne(learner: string, frame: Frame, seed: number): { graph: Graph; seconds: number } {
+function runOne(learner: string, frame: Frame, seed: number): { graph: Graph; seconds: number; chose?: string } {
   const t0 = performance.now();
   let graph: Graph;
+  let chose: string | undefined;
   if (learner === 'r2-sort-regress') graph = r2SortRegress(frame);
   else if (learner === 'empty') graph = emptyGraph(frame.columns.map((c) => c.name));
-  else graph = learn(frame, {}, { learner: learner as 'pc', seed }).graph;
-  return { graph, seconds: (performance.now() - t0) / 1000 };
+  else {
+    const res = learn(frame, {}, { learner: learner as 'pc', seed });
+    graph = res.graph;
+    if (learner === 'auto') chose = res.learner;
+  }
+  return { graph, seconds: (performance.now() - t0) / 1000, chose };
 }
 
 const records: Record[] = [];
@@ -100,16 +107,18 @@ log(`start: ${load()}`);
 for (const cfg of configs) {
   if (only && !only.includes(cfg.id)) continue;
   const data = seeds.map((s) => generateDataset(cfg.data, 1000 + s));
-  const learners = [...cfg.learners.filter((l) => available.has(l as 'pc')), 'r2-sort-regress', 'empty'];
+  const learners = [...cfg.learners.filter((l) => l === 'auto' || available.has(l as 'pc')), 'r2-sort-regress', 'empty'];
   for (const learner of learners) {
     const shd: number[] = [];
     const adj: number[] = [];
     const ori: number[] = [];
     const sec: number[] = [];
     let error: string | undefined;
+    const chose: string[] = [];
     for (let k = 0; k < seeds.length; k++) {
       try {
-        const { graph, seconds } = runOne(learner, data[k].frame, seeds[k]);
+        const { graph, seconds, chose: c } = runOne(learner, data[k].frame, seeds[k]);
+        if (c) chose.push(c);
         const sc = edgeScores(graph, data[k].graph);
         shd.push(sc.shd);
         adj.push(sc.adjF1);
@@ -123,6 +132,7 @@ for (const cfg of configs) {
     const rec: Record = error
       ? { config: cfg.id, learner, shd: NaN, adj_f1: NaN, orient_f1: NaN, seconds: NaN, seeds: 0, error }
       : { config: cfg.id, learner, shd: median(shd), adj_f1: median(adj), orient_f1: median(ori), seconds: median(sec), seeds: seeds.length };
+    if (chose.length) rec.chose = chose;
     records.push(rec);
     log(`${cfg.id} ${learner}: ${JSON.stringify(rec)}`);
   }
@@ -147,12 +157,13 @@ if (!only || only.includes('sachs')) {
     .slice(1)
     .map((l) => l.split(',') as [string, string]);
   const truth = graphFromEdges(names, truthEdges);
-  const learners = [...['pc', 'direct-lingam', 'linear-notears', 'mlp-notears'].filter((l) => available.has(l as 'pc')), 'r2-sort-regress', 'empty'];
+  const learners = [...['pc', 'direct-lingam', 'linear-notears', 'mlp-notears'].filter((l) => available.has(l as 'pc')), 'auto', 'r2-sort-regress', 'empty'];
   for (const learner of learners) {
     try {
-      const { graph, seconds } = runOne(learner, frame, 1);
+      const { graph, seconds, chose } = runOne(learner, frame, 1);
       const sc = edgeScores(graph, truth);
       const rec: Record = { config: 'sachs', learner, shd: sc.shd, adj_f1: sc.adjF1, orient_f1: sc.orientF1, seconds, seeds: 1, edges: edgeCount(graph) };
+      if (chose) rec.chose = [chose];
       records.push(rec);
       sachs[learner] = { shd: sc.shd, edges: rec.edges as number };
       log(`sachs ${learner}: ${JSON.stringify(rec)}`);
@@ -215,7 +226,7 @@ lines.push('| configuration | learner | SHD | adjacency F1 | orientation F1 | se
 lines.push('| --- | --- | ---: | ---: | ---: | ---: |');
 for (const r of records) {
   const label = r.config === 'sachs' ? `Sachs et al. 2005 (853 rows, 20-edge consensus; learned edges ${r.edges ?? '—'})` : (configs.find((c) => c.id === r.config)?.label ?? r.config);
-  lines.push(`| ${label} | ${r.learner}${r.error ? ` (failed: ${r.error.slice(0, 60)})` : ''} | ${fmt(r.shd, r.config === 'sachs' ? 0 : 1)} | ${fmt(r.adj_f1)} | ${fmt(r.orient_f1)} | ${fmt(r.seconds, 1)} |`);
+  lines.push(`| ${label} | ${r.learner}${r.chose ? ` (chose ${[...new Set(r.chose)].join('/')})` : ''}${r.error ? ` (failed: ${r.error.slice(0, 60)})` : ''} | ${fmt(r.shd, r.config === 'sachs' ? 0 : 1)} | ${fmt(r.adj_f1)} | ${fmt(r.orient_f1)} | ${fmt(r.seconds, 1)} |`);
 }
 if (speed.length) {
   lines.push('');
