@@ -22,75 +22,190 @@ export interface OrientationReport {
   conflicts: number;
   /** Orientations a v-structure asked for that the knowledge forbids (not applied). */
   vetoed: number;
+  /** Colliders skipped because they would close a directed cycle with stronger ones. */
+  cyclic: number;
 }
 
 /**
- * Orients the v-structures of `skel` into `pdag` (marks [i*n + j]; both marks = undirected),
- * which already carries the orientations the knowledge imposes. All triples are decided
- * first and applied together, so the result does not depend on the variable order;
- * conflicting proposals leave the edge undirected.
+ * Decides the v-structures of `skel` against `pdag` (marks [i*n + j]; both marks =
+ * undirected), which already carries the orientations the knowledge imposes; `pdag` is not
+ * changed. All triples are decided first, so the decisions do not depend on the variable
+ * order; an edge two colliders want in opposite directions stays undirected (Colombo &
+ * Maathuis 2014 mark it bidirected; a CPDAG has no such mark). Returns the colliders as
+ * flat arm lists [a, k, b, k] (a→k, b→k), strongest first — by the share of separating sets
+ * without the middle node, then by the largest p-value among them; only exact ties in both
+ * fall back to the variable order. `applyColliders` then adds them.
  */
 export function orientVStructures(
   skel: Skeleton,
   pdag: Uint8Array,
-  test: CiTest,
+  test: Pick<CiTest, 'pValue'>,
   knowledge: CompiledKnowledge,
   alpha: number,
   maxCondSize: number,
   rule: VStructureRule,
-): OrientationReport {
+): { report: OrientationReport; colliders: number[][] } {
   const n = skel.n;
   const adj = skel.adj;
   const propose = new Uint8Array(n * n);
-  const report: OrientationReport = { colliders: 0, ambiguous: 0, conflicts: 0, vetoed: 0 };
+  const report: OrientationReport = { colliders: 0, ambiguous: 0, conflicts: 0, vetoed: 0, cyclic: 0 };
+  const found: Collider[] = [];
   for (let k = 0; k < n; k++) {
     for (let i = 0; i < n; i++) {
       if (adj[i * n + k] === 0) continue;
       for (let j = i + 1; j < n; j++) {
         if (adj[j * n + k] === 0 || adj[i * n + j] === 1) continue;
-        const decision = decideTriple(skel, test, i, k, j, alpha, maxCondSize, rule);
-        if (decision === 'ambiguous') report.ambiguous++;
-        if (decision !== 'collider') continue;
+        const t = decideTriple(skel, test, i, k, j, alpha, maxCondSize, rule);
+        if (t.decision === 'ambiguous') report.ambiguous++;
+        if (t.decision !== 'collider') continue;
         report.colliders++;
         propose[i * n + k] = 1;
         propose[j * n + k] = 1;
+        found.push({ i, k, j, share: t.share, maxP: t.maxP });
       }
     }
   }
-  for (let a = 0; a < n; a++) {
-    for (let b = 0; b < n; b++) {
-      if (propose[a * n + b] === 0) continue;
-      if (propose[b * n + a] === 1) {
-        if (a < b) report.conflicts++;
-        continue;
-      }
-      if (knowledge.forbidden[a * n + b] === 1 || pdag[a * n + b] === 0) {
-        report.vetoed++;
-        continue;
-      }
-      pdag[b * n + a] = 0;
+  for (let a = 0; a < n; a++) for (let b = a + 1; b < n; b++) if (propose[a * n + b] === 1 && propose[b * n + a] === 1) report.conflicts++;
+  found.sort((u, v) => v.share - u.share || v.maxP - u.maxP || u.k - v.k || u.i - v.i || u.j - v.j);
+  const colliders: number[][] = [];
+  for (const c of found) {
+    // Each arm a→k: kept when no other collider wants k→a and the edge is still undirected;
+    // an edge the knowledge already turned k→a refuses it.
+    const arms: number[] = [];
+    if (arm(pdag, propose, knowledge, n, c.i, c.k, report)) arms.push(c.i, c.k);
+    if (arm(pdag, propose, knowledge, n, c.j, c.k, report)) arms.push(c.j, c.k);
+    if (arms.length > 0) colliders.push(arms);
+  }
+  return { report, colliders };
+}
+
+/**
+ * Adds the colliders to `pdag` strongest first, skipping one whose arms would close a
+ * directed cycle with those already added, then closes under `close` (Meek's rules and the
+ * knowledge) once. Meek's rules assume a consistent pattern; if test errors make the
+ * closure cyclic, the weakest colliders are dropped one at a time until it is not. Skipped
+ * and dropped colliders are counted in `report.cyclic`. Returns the closed marks.
+ */
+export function applyColliders(
+  pdag: Uint8Array,
+  n: number,
+  colliders: readonly (readonly number[])[],
+  close: (marks: Uint8Array) => Uint8Array,
+  report: OrientationReport,
+): Uint8Array {
+  const stack: number[] = [];
+  const seen = new Uint8Array(n);
+  const kept: (readonly number[])[] = [];
+  const marks = pdag.slice();
+  for (const arms of colliders) {
+    let cyclic = false;
+    // A new edge a→k closes a cycle iff k already reaches a by directed edges.
+    for (let t = 0; t < arms.length && !cyclic; t += 2) if (reaches(marks, n, arms[t + 1], arms[t], stack, seen)) cyclic = true;
+    if (cyclic) {
+      report.cyclic++;
+      continue;
+    }
+    for (let t = 0; t < arms.length; t += 2) marks[arms[t + 1] * n + arms[t]] = 0;
+    kept.push(arms);
+  }
+  let closed = close(marks);
+  if (!reachesAnyCycle(closed, n)) return closed;
+  // Drop the weakest colliders until the closure is acyclic, then try to add each dropped one
+  // back, strongest first, keeping it when the closure stays acyclic.
+  const build = (set: readonly (readonly number[])[]): Uint8Array => {
+    const trial = pdag.slice();
+    for (const arms of set) for (let t = 0; t < arms.length; t += 2) trial[arms[t + 1] * n + arms[t]] = 0;
+    return close(trial);
+  };
+  const dropped: (readonly number[])[] = [];
+  while (kept.length > 0 && reachesAnyCycle(closed, n)) {
+    dropped.unshift(kept.pop() as readonly number[]);
+    closed = build(kept);
+  }
+  for (const arms of dropped) {
+    const next = build([...kept, arms]);
+    if (reachesAnyCycle(next, n)) report.cyclic++;
+    else {
+      kept.push(arms);
+      closed = next;
     }
   }
-  return report;
+  return closed;
+}
+
+/** True when the directed (one-mark) edges of a PDAG contain a cycle (Kahn 1962). */
+export function reachesAnyCycle(adj: Uint8Array, n: number): boolean {
+  const indeg = new Int32Array(n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (adj[i * n + j] === 1 && adj[j * n + i] === 0) indeg[j]++;
+  const queue: number[] = [];
+  for (let i = 0; i < n; i++) if (indeg[i] === 0) queue.push(i);
+  let seen = 0;
+  while (queue.length > 0) {
+    const u = queue.pop() as number;
+    seen++;
+    for (let v = 0; v < n; v++) {
+      if (adj[u * n + v] === 1 && adj[v * n + u] === 0 && --indeg[v] === 0) queue.push(v);
+    }
+  }
+  return seen < n;
 }
 
 type Decision = 'collider' | 'non-collider' | 'ambiguous';
 
+interface Collider {
+  readonly i: number;
+  readonly k: number;
+  readonly j: number;
+  /** Share of the separating sets of i and j that do not contain k. */
+  readonly share: number;
+  /** Largest p-value among those separating sets. */
+  readonly maxP: number;
+}
+
+function arm(pdag: Uint8Array, propose: Uint8Array, k: CompiledKnowledge, n: number, a: number, mid: number, report: OrientationReport): boolean {
+  if (propose[mid * n + a] === 1) return false;
+  if (pdag[a * n + mid] === 0 || k.forbidden[a * n + mid] === 1) {
+    report.vetoed++;
+    return false;
+  }
+  return pdag[mid * n + a] === 1;
+}
+
+/** True when `to` is reachable from `from` along directed (one-mark) edges. */
+function reaches(adj: Uint8Array, n: number, from: number, to: number, stack: number[], seen: Uint8Array): boolean {
+  seen.fill(0);
+  stack.length = 0;
+  stack.push(from);
+  seen[from] = 1;
+  while (stack.length > 0) {
+    const u = stack.pop() as number;
+    if (u === to) return true;
+    for (let v = 0; v < n; v++) {
+      if (seen[v] === 0 && adj[u * n + v] === 1 && adj[v * n + u] === 0) {
+        seen[v] = 1;
+        stack.push(v);
+      }
+    }
+  }
+  return false;
+}
+
 function decideTriple(
   skel: Skeleton,
-  test: CiTest,
+  test: Pick<CiTest, 'pValue'>,
   i: number,
   k: number,
   j: number,
   alpha: number,
   maxCondSize: number,
   rule: VStructureRule,
-): Decision {
+): { decision: Decision; share: number; maxP: number } {
   const n = skel.n;
   const adj = skel.adj;
   const seen = new Set<string>();
   let found = 0;
   let withK = 0;
+  let maxP = 0;
   const cond: number[] = [];
   for (let side = 0; side < 2; side++) {
     const from = side === 0 ? i : j;
@@ -107,9 +222,11 @@ function decideTriple(
         const key = cond.join(',');
         if (!seen.has(key)) {
           seen.add(key);
-          if (test.pValue(i, j, cond) > alpha) {
+          const p = test.pValue(i, j, cond);
+          if (p > alpha) {
             found++;
             if (cond.includes(k)) withK++;
+            else if (p > maxP) maxP = p;
           }
         }
         if (!nextSubset(idx, size, cand.length)) break;
@@ -118,14 +235,11 @@ function decideTriple(
   }
   if (found === 0) {
     const sep = skel.sepsets.get(i * n + j) ?? [];
-    return sep.includes(k) ? 'non-collider' : 'collider';
+    return { decision: sep.includes(k) ? 'non-collider' : 'collider', share: 0, maxP: 0 };
   }
-  if (rule === 'conservative') {
-    if (withK === 0) return 'collider';
-    if (withK === found) return 'non-collider';
-    return 'ambiguous';
-  }
-  if (2 * withK < found) return 'collider';
-  if (2 * withK > found) return 'non-collider';
-  return 'ambiguous';
+  const share = 1 - withK / found;
+  let decision: Decision;
+  if (rule === 'conservative') decision = withK === 0 ? 'collider' : withK === found ? 'non-collider' : 'ambiguous';
+  else decision = 2 * withK < found ? 'collider' : 2 * withK > found ? 'non-collider' : 'ambiguous';
+  return { decision, share, maxP };
 }

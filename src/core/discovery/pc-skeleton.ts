@@ -25,7 +25,7 @@ export interface Skeleton {
  */
 export function pcSkeleton(
   n: number,
-  test: CiTest,
+  test: Pick<CiTest, 'pValue'>,
   knowledge: CompiledKnowledge,
   alpha: number,
   maxCondSize: number,

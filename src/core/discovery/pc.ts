@@ -1,10 +1,10 @@
 import type { Frame } from '../frame/frame.js';
 import { meekInPlace } from '../graph/meek-rules.js';
 import type { Rng } from '../random/rng.js';
-import { createCiTest } from './ci-tests.js';
+import { createCiTest, type CiTest } from './ci-tests.js';
 import type { CompiledKnowledge } from './knowledge.js';
 import type { Learner, LearnResult } from './learner.js';
-import { orientVStructures, type VStructureRule } from './pc-orientation.js';
+import { applyColliders, orientVStructures, type VStructureRule } from './pc-orientation.js';
 import { pcSkeleton } from './pc-skeleton.js';
 
 /**
@@ -67,25 +67,10 @@ export const pc: Learner<PcOptions> = {
       }
     }
     const test = createCiTest(frame);
-    const skel = pcSkeleton(n, test, knowledge, o.alpha, o.maxCondSize);
-    const pdag = skel.adj.slice();
-    imposeKnowledge(pdag, n, knowledge);
-    const rep = orientVStructures(skel, pdag, test, knowledge, o.alpha, o.maxCondSize, o.vStructureRule);
-    let adj = closeUnderMeek(pdag, names, knowledge);
-    const notes = [
-      `PC-stable with ${test.family === 'fisher-z' ? 'Fisher z tests' : 'Fisher z and likelihood-ratio tests (mixed data)'}, alpha ${o.alpha}, ` +
-        `conditioning sets up to size ${skel.maxLevel < 0 ? 0 : skel.maxLevel}, ${test.computed} tests`,
-      `v-structures (${o.vStructureRule} rule): ${rep.colliders} colliders, ${rep.ambiguous} ambiguous triples, ` +
-        `${rep.conflicts} conflicting edges left undirected, ${rep.vetoed} orientations refused by the knowledge`,
-    ];
-    if (directedCycle(adj, n)) {
-      // Data and knowledge disagree so much that the v-structures close a directed cycle:
-      // keep only what the knowledge and Meek's rules imply.
-      const plain = skel.adj.slice();
-      imposeKnowledge(plain, n, knowledge);
-      adj = closeUnderMeek(plain, names, knowledge);
-      notes.push('the v-structures formed a directed cycle with the knowledge; they were dropped');
-    }
+    const { adj, notes } = pcWithTest(names, test, knowledge, o);
+    notes.unshift(
+      `PC-stable with ${test.family === 'fisher-z' ? 'Fisher z tests' : 'Fisher z and likelihood-ratio tests (mixed data)'}, alpha ${o.alpha}, ${test.computed} tests`,
+    );
     return {
       learner: 'pc',
       kind: 'cpdag',
@@ -95,6 +80,31 @@ export const pc: Learner<PcOptions> = {
     };
   },
 };
+
+/**
+ * PC-stable on any conditional independence test (the data-free core; a d-separation oracle
+ * in place of `test` must give exactly the CPDAG of the true DAG). Returns the PDAG marks.
+ */
+export function pcWithTest(
+  names: readonly string[],
+  test: Pick<CiTest, 'pValue'>,
+  knowledge: CompiledKnowledge,
+  o: PcOptions,
+): { adj: Uint8Array; notes: string[] } {
+  const n = names.length;
+  const skel = pcSkeleton(n, test, knowledge, o.alpha, o.maxCondSize);
+  const pdag = skel.adj.slice();
+  imposeKnowledge(pdag, n, knowledge);
+  const { report: rep, colliders } = orientVStructures(skel, pdag, test, knowledge, o.alpha, o.maxCondSize, o.vStructureRule);
+  const adj = applyColliders(pdag, n, colliders, (marks) => closeUnderMeek(marks, names, knowledge), rep);
+  const notes = [
+    `conditioning sets up to size ${skel.maxLevel < 0 ? 0 : skel.maxLevel}`,
+    `v-structures (${o.vStructureRule} rule): ${rep.colliders} colliders, ${rep.ambiguous} ambiguous triples, ` +
+      `${rep.conflicts} conflicting edges left undirected, ${rep.vetoed} orientations refused by the knowledge, ` +
+      `${rep.cyclic} colliders skipped as they would close a directed cycle`,
+  ];
+  return { adj, notes };
+}
 
 /**
  * Makes the marks `pdag` agree with the knowledge: required edges directed, an edge with one
@@ -147,21 +157,4 @@ function closeUnderMeek(pdag: Uint8Array, names: readonly string[], k: CompiledK
     if (!imposeKnowledge(adj, n, k)) break;
   }
   return adj;
-}
-
-/** True when the directed (one-mark) edges of a PDAG contain a cycle. */
-function directedCycle(adj: Uint8Array, n: number): boolean {
-  const indeg = new Int32Array(n);
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (adj[i * n + j] === 1 && adj[j * n + i] === 0) indeg[j]++;
-  const queue: number[] = [];
-  for (let i = 0; i < n; i++) if (indeg[i] === 0) queue.push(i);
-  let seen = 0;
-  while (queue.length > 0) {
-    const u = queue.pop() as number;
-    seen++;
-    for (let v = 0; v < n; v++) {
-      if (adj[u * n + v] === 1 && adj[v * n + u] === 0 && --indeg[v] === 0) queue.push(v);
-    }
-  }
-  return seen < n;
 }

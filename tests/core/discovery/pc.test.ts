@@ -1,8 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { makeFrame, type Column, type Frame } from '../../../src/core/frame/frame.js';
 import { compileKnowledge, type Knowledge } from '../../../src/core/discovery/knowledge.js';
-import { pc, type PcOptions } from '../../../src/core/discovery/pc.js';
+import { pc, pcWithTest, PC_DEFAULTS, type PcOptions } from '../../../src/core/discovery/pc.js';
+import { dagToCpdag } from '../../../src/core/graph/cpdag.js';
+import { dSeparated } from '../../../src/core/graph/d-separation.js';
+import { topologicalOrder } from '../../../src/core/graph/topological-order.js';
 import { Rng } from '../../../src/core/random/rng.js';
+import { randomDag } from '../../../src/core/synthetic/random-dag.js';
 
 const cont = (name: string, values: Float64Array): Column => ({ name, kind: 'continuous', values });
 
@@ -151,6 +155,40 @@ describe('PC-stable', () => {
     expect(mixed).toEqual(ref);
     // Truth: b→d←c collider, then d→e by Meek R1; a—b, a—c undirected.
     expect(ref).toEqual(['a—b', 'a—c', 'b→d', 'c→d', 'd→e']);
+  });
+
+  // With a d-separation oracle in place of the tests, PC must return exactly the CPDAG of the
+  // true DAG (Spirtes, Glymour & Scheines 2000, Thm 5.1; Meek 1995 for the orientation rules).
+  it('with a d-separation oracle returns exactly the CPDAG of the true DAG (30 random DAGs, both rules)', () => {
+    for (let seed = 1; seed <= 30; seed++) {
+      const g = randomDag({ family: seed % 2 ? 'er' : 'sf', nodes: 10, expectedEdges: 18 }, Rng.create(seed));
+      const oracle = { pValue: (i: number, j: number, s: readonly number[]) => (dSeparated(g, [i], [j], s) ? 1 : 0) };
+      const truth = Array.from(dagToCpdag(g).adj);
+      for (const vStructureRule of ['majority', 'conservative'] as const) {
+        const { adj } = pcWithTest(g.names, oracle, compileKnowledge(g.names, {}), { ...PC_DEFAULTS, vStructureRule });
+        expect(Array.from(adj), `seed ${seed} ${vStructureRule}`).toEqual(truth);
+      }
+    }
+  });
+
+  it('with an oracle and tiers that agree with the truth, orients only correctly and every cross-tier edge', () => {
+    for (let seed = 31; seed <= 50; seed++) {
+      const g = randomDag({ family: 'er', nodes: 9, expectedEdges: 14 }, Rng.create(seed));
+      const order = topologicalOrder(g)!;
+      const tiers = [order.slice(0, 3), order.slice(3, 6), order.slice(6)].map((t) => t.map((i) => g.names[i]));
+      const oracle = { pValue: (i: number, j: number, s: readonly number[]) => (dSeparated(g, [i], [j], s) ? 1 : 0) };
+      const k = compileKnowledge(g.names, { tiers });
+      const { adj } = pcWithTest(g.names, oracle, k, PC_DEFAULTS);
+      const n = g.n;
+      for (let i = 0; i < n; i++) {
+        for (let j = 0; j < n; j++) {
+          const truthAdj = g.adj[i * n + j] + g.adj[j * n + i];
+          expect(adj[i * n + j] + adj[j * n + i] > 0, `seed ${seed} skeleton ${i}-${j}`).toBe(truthAdj > 0);
+          if (adj[i * n + j] === 1 && adj[j * n + i] === 0) expect(g.adj[i * n + j], `seed ${seed} ${i}→${j}`).toBe(1);
+          if (g.adj[i * n + j] === 1 && k.tierOf[i] !== k.tierOf[j]) expect(adj[j * n + i], `seed ${seed} ${j}→${i} across tiers`).toBe(0);
+        }
+      }
+    }
   });
 
   it('rejects bad options', () => {
