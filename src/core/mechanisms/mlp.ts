@@ -1,5 +1,5 @@
 /**
- * One-hidden-layer perceptron mechanisms (tanh hidden units, one linear output):
+ * One-hidden-layer perceptron mechanisms (tanh-shaped hidden units — activation.ts — and one linear output):
  *  - continuous (`mlp`): x = yCentre + yScale·net(z) + e, squared loss on the standardised target;
  *  - binary (`mlp-bernoulli`): P(x = 1) = sigmoid(net(z)), cross-entropy loss.
  * Trained by mini-batch Adam (Kingma & Ba 2015) with L2 weight decay on the weights, Glorot
@@ -8,6 +8,7 @@
  */
 import type { Matrix } from '../linalg/matrix.js';
 import type { Rng } from '../random/rng.js';
+import { tanhApprox } from './activation.js';
 import { sigmoid } from './predict.js';
 import type { ResolvedMechanismOptions } from './types.js';
 
@@ -90,7 +91,7 @@ export function trainMlp(
       for (let u = 0; u < h; u++) {
         let a = w[oB1 + u];
         for (let j = 0; j < p; j++) a += w[u * p + j] * xd[i * p + j];
-        s += w[oW2 + u] * Math.tanh(a);
+        s += w[oW2 + u] * tanhApprox(a);
       }
       if (binary) {
         const pr = Math.min(1 - 1e-12, Math.max(1e-12, sigmoid(s)));
@@ -118,7 +119,7 @@ export function trainMlp(
         for (let u = 0; u < h; u++) {
           let a = w[oB1 + u];
           for (let j = 0; j < p; j++) a += w[u * p + j] * xd[i * p + j];
-          t[u] = Math.tanh(a);
+          t[u] = tanhApprox(a);
           s += w[oW2 + u] * t[u];
         }
         const ds = binary ? sigmoid(s) - y[i] : s - (y[i] - yCentre) / yScale;

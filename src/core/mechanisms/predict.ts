@@ -3,6 +3,7 @@
  * simulator has its own column-wise kernel over the compiled parameter arrays).
  */
 import type { Matrix } from '../linalg/matrix.js';
+import { tanhApprox } from './activation.js';
 import type { FittedMechanism } from './types.js';
 
 /** sigmoid(t) without overflow. */
@@ -58,7 +59,7 @@ export function predictMechanism(m: FittedMechanism, x: Matrix, out?: Float64Arr
       for (let u = 0; u < h; u++) {
         let a = w[b1 + u];
         for (let j = 0; j < p; j++) a += w[u * p + j] * xd[r * p + j];
-        s += w[w2 + u] * Math.tanh(a);
+        s += w[w2 + u] * tanhApprox(a);
       }
       o[r] = m.family === 'mlp' ? m.yCentre + m.yScale * s : sigmoid(s);
     }

@@ -44,11 +44,12 @@ export const NOISE_UNIFORM = 2;
 
 /**
  * Columns of one row of `mechTable` (Int32, MECH_STRIDE per mechanism).
- * Parameters of a mechanism with nIn encoded inputs, h hidden units and k outputs
+ * Parameters of a mechanism with nIn encoded inputs, h hidden units and k outputs (the MLP hidden
+ * activation is mechanisms/activation.ts, a rational approximation of tanh)
  * (`mechParams[paramOffset ..]`):
  *  - linear / logistic: [b, w_1..w_nIn]                       (1 + nIn values)
  *  - softmax:           k rows of [b_c, w_c1..w_cnIn]          (k(1 + nIn))
- *  - mlp / mlp-bernoulli (tanh hidden layer, one output):
+ *  - mlp / mlp-bernoulli (one hidden layer, activation mechanisms/activation.ts, one output):
  *       W1 (h × nIn, row-major), b1 (h), w2 (h), b2 (1)      (h·nIn + 2h + 1)
  * Encoded inputs (ENCODING_ADDITIVE): parents in ascending index order; a continuous parent contributes one input
  * (x − centre)/scale, a binary parent one input (0/1), a categorical parent with k levels

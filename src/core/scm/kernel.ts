@@ -31,6 +31,7 @@ import {
   SCALAR_Y_CENTRE,
   SCALAR_Y_SCALE,
 } from './compiled-model.js';
+import { tanhApprox } from '../mechanisms/activation.js';
 
 /**
  * out[i] += Σ over the mechanism's encoded inputs of w·z_i, with weights read from
@@ -77,6 +78,47 @@ function accumulate(model: CompiledModel, m: number, values: Float64Array, n: nu
   }
 }
 
+/** The mechanism's encoded inputs (mechanisms/encode.ts) as nIn columns of n values at dest[destOff ..]. */
+function encodeColumns(model: CompiledModel, m: number, values: Float64Array, n: number, dest: Float64Array, destOff: number): void {
+  const t = model.mechTable;
+  const pa = t[m * MECH_STRIDE + MECH_PARENT_OFFSET];
+  const pc = t[m * MECH_STRIDE + MECH_PARENT_COUNT];
+  const nIn = t[m * MECH_STRIDE + MECH_N_IN];
+  if (t[m * MECH_STRIDE + MECH_ENCODING] === ENCODING_JOINT_CELLS) {
+    dest.fill(0, destOff, destOff + nIn * n);
+    for (let i = 0; i < n; i++) {
+      let cell = 0;
+      let radix = 1;
+      for (let a = 0; a < pc; a++) {
+        const j = model.mechParents[pa + a];
+        cell += radix * values[j * n + i];
+        radix *= model.nLevels[j];
+      }
+      if (cell > 0) dest[destOff + (cell - 1) * n + i] = 1;
+    }
+    return;
+  }
+  let col = destOff;
+  for (let a = 0; a < pc; a++) {
+    const j = model.mechParents[pa + a];
+    const src = j * n;
+    if (model.kinds[j] === KIND_CATEGORICAL) {
+      const k = model.nLevels[j];
+      dest.fill(0, col, col + (k - 1) * n);
+      for (let i = 0; i < n; i++) {
+        const c = values[src + i];
+        if (c > 0) dest[col + (c - 1) * n + i] = 1;
+      }
+      col += (k - 1) * n;
+    } else {
+      const cen = model.centre[j];
+      const sc = model.scale[j];
+      for (let i = 0; i < n; i++) dest[col + i] = (values[src + i] - cen) / sc;
+      col += n;
+    }
+  }
+}
+
 /** sigmoid(t) without overflow (same formula as mechanisms/predict.ts). */
 function sigmoid(t: number): number {
   if (t >= 0) return 1 / (1 + Math.exp(-t));
@@ -87,7 +129,7 @@ function sigmoid(t: number): number {
 /**
  * f(parents) of mechanism m for n units into `out`: continuous → conditional mean (n values);
  * binary → P(x = 1) (n values); categorical → class probabilities, class-major (out[c*n + i]).
- * `scratch` must hold hidden·n values for MLP mechanisms.
+ * `scratch` must hold kernelWidths(model).hidden · n values.
  */
 export function mechanismOutput(model: CompiledModel, m: number, values: Float64Array, n: number, scratch: Float64Array, out: Float64Array): void {
   const t = model.mechTable;
@@ -125,20 +167,28 @@ export function mechanismOutput(model: CompiledModel, m: number, values: Float64
     }
     return;
   }
-  // MLP families: W1 (h × nIn), b1 (h), w2 (h), b2.
+  // MLP families: W1 (h × nIn), b1 (h), w2 (h), b2. The encoded inputs are written once into
+  // scratch rows h..h+nIn−1, then each hidden unit is a weighted sum of those columns.
   const h = t[row + MECH_HIDDEN];
   const b1 = po + h * nIn;
   const w2 = b1 + h;
   const b2 = w2 + h;
+  const zOff = h * n;
+  encodeColumns(model, m, values, n, scratch, zOff);
   for (let u = 0; u < h; u++) {
-    scratch.fill(P[b1 + u], u * n, u * n + n);
-    accumulate(model, m, values, n, po + u * nIn, scratch, u * n);
+    const off = u * n;
+    scratch.fill(P[b1 + u], off, off + n);
+    for (let k = 0; k < nIn; k++) {
+      const w = P[po + u * nIn + k];
+      const zk = zOff + k * n;
+      for (let i = 0; i < n; i++) scratch[off + i] += w * scratch[zk + i];
+    }
   }
   out.fill(P[b2], 0, n);
   for (let u = 0; u < h; u++) {
     const wu = P[w2 + u];
     const off = u * n;
-    for (let i = 0; i < n; i++) out[i] += wu * Math.tanh(scratch[off + i]);
+    for (let i = 0; i < n; i++) out[i] += wu * tanhApprox(scratch[off + i]);
   }
   if (fam === FAMILY_MLP) for (let i = 0; i < n; i++) out[i] = yC + yS * out[i];
   else for (let i = 0; i < n; i++) out[i] = sigmoid(out[i]);
@@ -179,13 +229,17 @@ export function applyNoise(
   }
 }
 
-/** Largest hidden·n and nOut·n buffer sizes over the model's mechanisms, per unit. */
+/**
+ * Per-unit sizes of the kernel buffers: `hidden` rows of scratch (MLP hidden units plus their
+ * encoded inputs) and `outputs` rows of output; allocate hidden·n and outputs·n values.
+ */
 export function kernelWidths(model: CompiledModel): { hidden: number; outputs: number } {
   let hidden = 1;
   let outputs = 1;
   for (let m = 0; m < model.nMechanisms; m++) {
     const row = m * MECH_STRIDE;
-    if (model.mechTable[row + MECH_HIDDEN] > hidden) hidden = model.mechTable[row + MECH_HIDDEN];
+    const h = model.mechTable[row + MECH_HIDDEN];
+    if (h > 0 && h + model.mechTable[row + MECH_N_IN] > hidden) hidden = h + model.mechTable[row + MECH_N_IN];
     if (model.mechTable[row + MECH_N_OUT] > outputs) outputs = model.mechTable[row + MECH_N_OUT];
   }
   return { hidden, outputs };
