@@ -19,18 +19,25 @@ import { logisticRegression, softmaxRegression } from '../stats/index.js';
  *   where the statistic is n·log(RSS_reduced / RSS_full).
  * - regressors: continuous as is, binary as 0/1, categorical one-hot with level 0 as the
  *   reference (k − 1 indicator columns).
- * - which target: the discrete variable when exactly one of X, Y is discrete (a regression
- *   with a discrete response is the model that fits it); when both are discrete, both
- *   directions are run and the larger p-value is kept (the symmetric, conservative
- *   combination of Tsagris et al. 2018); when both are continuous (and S holds a discrete
- *   variable) X is regressed on S and S ∪ {Y}, which is the partial-correlation test with
- *   one-hot conditioning.
+ * - which target: a binary variable first (a logistic fit is cheap and models it exactly),
+ *   then a continuous one, a categorical one last (a softmax fit costs about (k − 1)² times
+ *   a logistic one, and with a continuous partner the linear regression on the one-hot
+ *   levels tests the same null). When both are binary or both categorical, both directions
+ *   are run and the larger p-value is kept (the symmetric, conservative combination of
+ *   Tsagris et al. 2018). Both continuous (S then holds a discrete variable): X is regressed
+ *   on S and S ∪ {Y}, the partial-correlation test with one-hot conditioning.
  * Reduced-model fits are cached per (target, S).
  */
 export interface MixedCiTest {
   /** p-value of H0: i ⊥ j | cond. */
   pValue(i: number, j: number, cond: readonly number[]): number;
 }
+
+/**
+ * Newton's method converges quadratically, so a step tolerance of 1e-7 leaves the
+ * log-likelihood within ~1e-12 of its maximum: far below what moves a χ² p-value.
+ */
+const FIT = { tol: 1e-7, maxIter: 30 } as const;
 
 interface Encoded {
   readonly width: number;
@@ -88,8 +95,8 @@ export function createMixedCiTest(frame: Frame): MixedCiTest {
     const y = col.values;
     if (col.kind === 'continuous') return lstsq(design(vars), y).rss;
     if (vars.length === 0) return interceptOnlyLogLik(y, enc[t].levels);
-    if (col.kind === 'binary') return logisticRegression(design(vars), y).logLik;
-    return softmaxRegression(design(vars), y, enc[t].levels).logLik;
+    if (col.kind === 'binary') return logisticRegression(design(vars), y, FIT).logLik;
+    return softmaxRegression(design(vars), y, enc[t].levels, FIT).logLik;
   };
 
   const directional = (t: number, o: number, cond: readonly number[]): number => {
@@ -113,14 +120,16 @@ export function createMixedCiTest(frame: Frame): MixedCiTest {
 
   return {
     pValue(i, j, cond) {
-      const di = cols[i].kind !== 'continuous';
-      const dj = cols[j].kind !== 'continuous';
-      if (di && dj) return Math.max(directional(i, j, cond), directional(j, i, cond));
-      if (dj) return directional(j, i, cond);
-      return directional(i, j, cond);
+      const ri = RANK[cols[i].kind];
+      const rj = RANK[cols[j].kind];
+      if (ri === rj && ri !== RANK.continuous) return Math.max(directional(i, j, cond), directional(j, i, cond));
+      return rj < ri ? directional(j, i, cond) : directional(i, j, cond);
     },
   };
 }
+
+/** Preference for the regression target (lower first). */
+const RANK = { binary: 0, continuous: 1, categorical: 2 } as const;
 
 /** Σ_k n_k·log(n_k / n): the maximised log-likelihood of a model with intercepts only. */
 function interceptOnlyLogLik(y: Float64Array, k: number): number {

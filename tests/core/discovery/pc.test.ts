@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { makeFrame, type Column, type Frame } from '../../../src/core/frame/frame.js';
 import { compileKnowledge, type Knowledge } from '../../../src/core/discovery/knowledge.js';
+import { createCiTest } from '../../../src/core/discovery/ci-tests.js';
 import { pc, pcWithTest, PC_DEFAULTS, type PcOptions } from '../../../src/core/discovery/pc.js';
 import { dagToCpdag } from '../../../src/core/graph/cpdag.js';
 import { dSeparated } from '../../../src/core/graph/d-separation.js';
@@ -38,6 +39,53 @@ function gaussians(n: number, k: number, seed: number): Float64Array[] {
     return v;
   });
 }
+
+describe('conditional independence tests', () => {
+  // Under H0 a valid test's p-values are uniform, so about 5% fall below 0.05 (Wilks 1938
+  // for the likelihood-ratio χ² limit); binomial sd over 150 replications is 1.8%.
+  it('mixed likelihood-ratio tests hold their level under H0 and have power under H1', () => {
+    const reps = 150;
+    const n = 300;
+    const rng = Rng.create(21);
+    const rejections = [0, 0, 0, 0];
+    let power = 0;
+    for (let rep = 0; rep < reps; rep++) {
+      const z = new Float64Array(n);
+      const x = new Float64Array(n);
+      const b = new Float64Array(n);
+      const c = new Float64Array(n);
+      const w = new Float64Array(n);
+      for (let r = 0; r < n; r++) {
+        z[r] = rng.normal();
+        x[r] = 0.8 * z[r] + rng.normal();
+        b[r] = rng.uniform() < 1 / (1 + Math.exp(-z[r])) ? 1 : 0;
+        const u = rng.uniform();
+        c[r] = z[r] + 0.5 * rng.normal() < -0.5 ? 0 : u < 0.5 ? 1 : 2;
+        w[r] = 0.5 * x[r] + rng.normal(); // depends on x given z
+      }
+      const f = makeFrame([
+        cont('z', z),
+        cont('x', x),
+        { name: 'b', kind: 'binary', values: b },
+        { name: 'c', kind: 'categorical', values: c },
+        { name: 'cz', kind: 'categorical', values: c.slice() },
+        cont('w', w),
+      ]);
+      const t = createCiTest(f);
+      expect(t.family).toBe('mixed');
+      if (t.pValue(1, 2, [0]) < 0.05) rejections[0]++; // x ⊥ b | z (logistic target)
+      if (t.pValue(1, 3, [0]) < 0.05) rejections[1]++; // x ⊥ c | z (linear target, one-hot c)
+      if (t.pValue(2, 3, [0]) < 0.05) rejections[2]++; // b ⊥ c | z (both discrete)
+      if (t.pValue(2, 5, [3, 0]) < 0.05) rejections[3]++; // b ⊥ w | c, z (categorical conditioning)
+      if (t.pValue(1, 5, [4, 0]) < 0.01) power++; // x, w dependent given cz, z
+    }
+    for (const k of rejections) {
+      expect(k / reps).toBeGreaterThan(0.01);
+      expect(k / reps).toBeLessThan(0.11);
+    }
+    expect(power / reps).toBeGreaterThan(0.95);
+  });
+});
 
 describe('PC-stable', () => {
   // Analytic truth: the CPDAG of x→z←y is the DAG itself (an unshielded collider);
