@@ -13,7 +13,21 @@
  * deserialise(serialise(m)) reproduces every field exactly, and serialise of the result gives
  * the same bytes.
  */
-import { type CompiledModel, type CompiledModelMeta, MODEL_FORMAT_VERSION } from './compiled-model.js';
+import {
+  type CompiledModel,
+  type CompiledModelMeta,
+  MECH_FAMILY,
+  MECH_NODE,
+  MECH_PARAM_COUNT,
+  MECH_PARAM_OFFSET,
+  MECH_PARENT_COUNT,
+  MECH_PARENT_OFFSET,
+  MECH_RESID_COUNT,
+  MECH_RESID_OFFSET,
+  MECH_STRIDE,
+  MODEL_FORMAT_VERSION,
+  SCALAR_STRIDE,
+} from './compiled-model.js';
 
 /** A byte string that is not a compiled model of a format this code reads. */
 export class ModelFormatError extends Error {
@@ -125,7 +139,7 @@ export function deserialise(bytes: Uint8Array): CompiledModel {
   for (const [name, n] of Object.entries(expect)) {
     if (arrays[name as ArrayField]!.length !== n) throw new ModelFormatError(`section ${name} has ${arrays[name as ArrayField]!.length} entries, expected ${n}`);
   }
-  return {
+  const model: CompiledModel = {
     formatVersion: version,
     meta: header.meta,
     p,
@@ -154,6 +168,32 @@ export function deserialise(bytes: Uint8Array): CompiledModel {
     referenceValues: arrays.referenceValues as Float64Array,
     referenceNoise: arrays.referenceNoise as Float64Array,
   };
+  checkTables(model);
+  return model;
+}
+
+/** Every index stored in the tables points inside its array (a corrupt artifact fails here, not in a query). */
+function checkTables(m: CompiledModel): void {
+  const bad = (what: string) => {
+    throw new ModelFormatError(`corrupt compiled model: ${what}`);
+  };
+  if (m.names.length !== m.p || m.levels.length !== m.p) bad('variable list');
+  if (m.mechTable.length !== m.nMechanisms * MECH_STRIDE || m.mechScalars.length !== m.nMechanisms * SCALAR_STRIDE) bad('mechanism table size');
+  for (let j = 0; j < m.p; j++) if (m.kinds[j] > 2) bad(`kind of variable ${j}`);
+  for (let k = 0; k < m.mechanismOf.length; k++) if (!(m.mechanismOf[k] >= 0 && m.mechanismOf[k] < m.nMechanisms)) bad('mechanism index');
+  for (let k = 0; k < m.topoOrder.length; k++) if (!(m.topoOrder[k] >= 0 && m.topoOrder[k] < m.p)) bad('topological order');
+  for (let i = 0; i < m.nMechanisms; i++) {
+    const t = i * MECH_STRIDE;
+    const within = (off: number, count: number, len: number) => off >= 0 && count >= 0 && off + count <= len;
+    if (!(m.mechTable[t + MECH_FAMILY] >= 0 && m.mechTable[t + MECH_FAMILY] <= 4)) bad(`family of mechanism ${i}`);
+    if (!(m.mechTable[t + MECH_NODE] >= 0 && m.mechTable[t + MECH_NODE] < m.p)) bad(`node of mechanism ${i}`);
+    if (!within(m.mechTable[t + MECH_PARAM_OFFSET], m.mechTable[t + MECH_PARAM_COUNT], m.mechParams.length)) bad(`parameters of mechanism ${i}`);
+    if (!within(m.mechTable[t + MECH_RESID_OFFSET], m.mechTable[t + MECH_RESID_COUNT], m.mechResiduals.length)) bad(`residuals of mechanism ${i}`);
+    const po = m.mechTable[t + MECH_PARENT_OFFSET];
+    const pc = m.mechTable[t + MECH_PARENT_COUNT];
+    if (!within(po, pc, m.mechParents.length)) bad(`parents of mechanism ${i}`);
+    for (let a = 0; a < pc; a++) if (!(m.mechParents[po + a] >= 0 && m.mechParents[po + a] < m.p)) bad(`parent of mechanism ${i}`);
+  }
 }
 
 function align8(n: number): number {

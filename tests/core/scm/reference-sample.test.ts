@@ -58,6 +58,16 @@ describe('stratified reference sample', () => {
     expect(m.referenceWeights.every((w) => w === 1)).toBe(true);
   });
 
+  it('with missing values: each mechanism fits on its complete rows, the reference sample keeps complete rows only', () => {
+    const V2 = V.slice();
+    for (let r = 0; r < n; r += 10) V2[r] = NaN;
+    const f = makeFrame([frame.columns[0], { name: 'V', kind: 'continuous', values: V2 }]);
+    const m = fitFixedGraph(f, graph, { referenceRows: 50_000 });
+    expect(m.nReference).toBe(n - n / 10);
+    expect(m.referenceValues.every((v) => !Number.isNaN(v))).toBe(true);
+    expect(m.meta.notes.join(' ')).toMatch(/fitted on 18000 of 20000 rows/);
+  });
+
   it('allocates floors first, then proportionally, never more than a cell holds', () => {
     const take = allocate([10_000, 30, 5, 4_965], 1000);
     expect(take.reduce((s, v) => s + v, 0)).toBe(1000);

@@ -66,5 +66,7 @@ describe('compiled model artifact', () => {
     new DataView(bytes.buffer).setUint32(4, 999, true);
     expect(() => deserialise(bytes)).toThrow(/version 999/);
     expect(() => deserialise(serialise(model).subarray(0, 2000))).toThrow(ModelFormatError);
+    const corrupt = serialise({ ...model, mechanismOf: model.mechanismOf.map(() => 99) });
+    expect(() => deserialise(corrupt)).toThrow(/mechanism index/);
   });
 });
