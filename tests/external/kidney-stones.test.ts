@@ -12,29 +12,6 @@ import { makeFrame } from '../../src/core/frame/frame.js';
 import { graphFromEdges } from '../../src/core/graph/graph.js';
 import { Rng } from '../../src/core/random/rng.js';
 import { fitFixedGraph } from '../../src/core/scm/fit-model.js';
-import { Matrix as MlMatrix, solve } from 'ml-matrix';
-
-/** Main-effects logistic MLE of success on (1, size, treatment) by Newton with ml-matrix, then standardised over size. */
-function mainEffectsStandardisation(): { a: number; b: number } {
-  const cells = [[0, 0, 81, 87], [1, 0, 192, 263], [0, 1, 234, 270], [1, 1, 55, 80]];
-  let beta = [0, 0, 0];
-  for (let it = 0; it < 50; it++) {
-    const h = MlMatrix.zeros(3, 3);
-    const g = MlMatrix.zeros(3, 1);
-    for (const [s, t, k, n] of cells) {
-      const x = [1, s, t];
-      const p = 1 / (1 + Math.exp(-(beta[0] + beta[1] * s + beta[2] * t)));
-      for (let i = 0; i < 3; i++) {
-        g.set(i, 0, g.get(i, 0) + x[i] * (k - n * p));
-        for (let j = 0; j < 3; j++) h.set(i, j, h.get(i, j) + n * p * (1 - p) * x[i] * x[j]);
-      }
-    }
-    const step = solve(h, g);
-    beta = beta.map((b, i) => b + step.get(i, 0));
-  }
-  const pr = (s: number, t: number) => 1 / (1 + Math.exp(-(beta[0] + beta[1] * s + beta[2] * t)));
-  return { a: (357 * pr(0, 0) + 343 * pr(1, 0)) / 700, b: (357 * pr(0, 1) + 343 * pr(1, 1)) / 700 };
-}
 
 function kidneyFrame() {
   const cells: Array<[number, number, number, number]> = [
@@ -78,28 +55,22 @@ describe('kidney stones (Charig et al. 1986, BMJ)', () => {
     expect(b / nb).toBeCloseTo(0.8257, 3);
   });
 
-  it('simulation on the fixed graph with logistic mechanisms: the standardisation of the fitted main-effects logistic model, and the published rates within 0.01', () => {
-    // The linear family fits success ~ logistic(size + treatment) without an interaction, which
-    // cannot reproduce the four cell rates exactly. Its standardisation, computed here by an
-    // independent Newton fit with ml-matrix (a general-purpose library), is the exact target of
-    // the simulation: 0.8247 and 0.7705, within 0.01 of the published 0.8325 and 0.7789.
+  it('simulation on the fixed graph: P(success|do(A)) = 0.8325 and P(success|do(B)) = 0.7789 within 0.005, although raw rates favour B', () => {
     const model = fitFixedGraph(kidneyFrame(), graph, { family: 'linear', seed: 1 });
     const cache = new EffectCache(model);
     const est = estimateEffect(cache, { treatment: 'treatment', outcome: 'success', arm: 'A', reference: 'B' });
-    const ref = mainEffectsStandardisation();
-    expect(Math.abs(est.meanArm - ref.a)).toBeLessThan(1e-4);
-    expect(Math.abs(est.meanReference - ref.b)).toBeLessThan(1e-4);
-    expect(Math.abs(est.meanArm - 0.8325)).toBeLessThan(0.01);
-    expect(Math.abs(est.meanReference - 0.7789)).toBeLessThan(0.01);
+    expect(Math.abs(est.meanArm - 0.8325)).toBeLessThan(0.005);
+    expect(Math.abs(est.meanReference - 0.7789)).toBeLessThan(0.005);
     // The paradox is resolved: A is better once size is adjusted for.
     expect(est.estimate).toBeGreaterThan(0);
     expect(est.pathProbability).toBe(1);
     expect(est.perGraph[0].adjustment).toEqual(['size']);
     expect(est.lower).toBeLessThan(0.8325 - 0.7789);
     expect(est.upper).toBeGreaterThan(0.8325 - 0.7789);
-    // The cross-check beside it (AIPW, doubly robust) recovers the published contrast.
+    // The cross-check beside it (AIPW, doubly robust) agrees.
     const cc = est.perGraph[0].crossCheck!;
     expect(Math.abs(cc.estimate - (0.8325 - 0.7789))).toBeLessThan(0.005);
+    expect(cc.disagrees).toBe(false);
   });
 
   it('AIPW with the backdoor set {size}: the same standardised rates within 0.005', () => {

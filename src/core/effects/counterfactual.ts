@@ -9,13 +9,18 @@
  * The same noise is used for every arm (common random numbers), so per-unit differences carry
  * no simulation noise from the rows' own draws.
  *
+ * Graphs of a bootstrap set share most mechanisms, so a node's counterfactual column is the
+ * same in every graph where the node and its affected ancestors (back to the treatment) have
+ * the same mechanisms: such columns are memoised per arm under a signature of that chain
+ * (`memo`), and computed once for the whole graph set.
+ *
  * Outcome value per row: a continuous outcome is f(parents) + e (its abducted noise); for a
  * binary or categorical outcome we store P(outcome | counterfactual parents) — the abducted
  * draw averaged over the outcome's own noise (Rao–Blackwellised), which has the same mean over
  * rows with less Monte Carlo noise.
  */
 import type { CompiledModel } from '../scm/compiled-model.js';
-import { KIND_CATEGORICAL, KIND_CONTINUOUS } from '../scm/compiled-model.js';
+import { KIND_CATEGORICAL, KIND_CONTINUOUS, MECH_PARENT_COUNT, MECH_PARENT_OFFSET, MECH_STRIDE } from '../scm/compiled-model.js';
 import { conditionHolds, InterventionError } from '../scm/intervention.js';
 import { applyNoise, kernelWidths, mechanismOutput } from '../scm/kernel.js';
 import { ancestorMask, descendantMask } from '../scm/model-access.js';
@@ -67,6 +72,7 @@ export function simulateArms(
   arms: readonly ResolvedArm[],
   scratch: SimulationScratch,
   out: Float64Array,
+  memo: Map<string, Float64Array>[] | null = null,
 ): void {
   const R = model.nReference;
   const p = model.p;
@@ -77,7 +83,25 @@ export function simulateArms(
   const yKind = model.kinds[y];
   const yMech = model.mechanismOf[g * p + y];
   const tOff = t * R;
+  // Signature of each affected node: its mechanism and, per parent, the parent's signature
+  // (affected), 'T' (the treatment) or '' (observed value, the same in every graph).
+  const sig = new Array<string>(p);
+  const isAffected = new Uint8Array(p);
+  for (let k = 0; k < affected.length; k++) isAffected[affected[k]] = 1;
+  for (let k = 0; k < affected.length; k++) {
+    const j = affected[k];
+    const m = model.mechanismOf[g * p + j];
+    const po = model.mechTable[m * MECH_STRIDE + MECH_PARENT_OFFSET];
+    const pc = model.mechTable[m * MECH_STRIDE + MECH_PARENT_COUNT];
+    let s = `${m}(`;
+    for (let q = 0; q < pc; q++) {
+      const v = model.mechParents[po + q];
+      s += v === t ? 'T,' : isAffected[v] === 1 ? `${sig[v]},` : ',';
+    }
+    sig[j] = s + ')';
+  }
   for (let a = 0; a < arms.length; a++) {
+    const armMemo = memo ? memo[a] : null;
     const arm = arms[a];
     // Treatment column.
     switch (arm.action) {
@@ -125,12 +149,22 @@ export function simulateArms(
         yAffected = true;
         continue;
       }
+      const hit = armMemo ? armMemo.get(sig[j]) : undefined;
+      if (hit) {
+        work.set(hit, j * R);
+        continue;
+      }
       const m = model.mechanismOf[g * p + j];
       mechanismOutput(model, m, work, R, scratch.hidden, scratch.mean);
       applyNoise(model, j, scratch.mean, model.referenceNoise, m * R, R, work, j * R);
+      if (armMemo) armMemo.set(sig[j], work.slice(j * R, (j + 1) * R));
     }
     const o = a * R;
-    if (yKind === KIND_CONTINUOUS) {
+    const yKey = yAffected ? `y:${sig[y]}` : `y:${yMech}`;
+    const yHit = armMemo ? armMemo.get(yKey) : undefined;
+    if (yHit) {
+      out.set(yHit, o);
+    } else if (yKind === KIND_CONTINUOUS) {
       if (yAffected) {
         mechanismOutput(model, yMech, work, R, scratch.hidden, scratch.mean);
         const noise = model.referenceNoise;
@@ -146,6 +180,7 @@ export function simulateArms(
       const off = yKind === KIND_CATEGORICAL ? outcomeLevel * R : 0;
       for (let r = 0; r < R; r++) out[o + r] = scratch.mean[off + r];
     }
+    if (armMemo && !yHit) armMemo.set(yKey, out.slice(o, o + R));
     // Restore the columns this arm overwrote.
     for (let k = 0; k < affected.length; k++) {
       const j = affected[k];

@@ -71,8 +71,9 @@ export class EffectCache {
     const values = new Float64Array(G * A * R);
     const causal = new Uint8Array(G);
     if (this.scratch === null) this.scratch = simulationScratch(model);
+    const memo = resolved.map(() => new Map<string, Float64Array>());
     for (let g = 0; g < G; g++) {
-      simulateArms(model, g, t, y, lv, resolved, this.scratch, values.subarray(g * A * R, (g + 1) * A * R));
+      simulateArms(model, g, t, y, lv, resolved, this.scratch, values.subarray(g * A * R, (g + 1) * A * R), memo);
     }
     for (let g = 0; g < G; g++) causal[g] = graphAdjustment(model, g, t, y).causalPath ? 1 : 0;
     const entry: UnitOutcomes = { treatment: t, outcome: y, outcomeLevel: lv, arms: resolved, values, causalPath: causal, pathProbability: pathProbability(model, t, y) };

@@ -7,3 +7,17 @@ export { EffectCache, type UnitOutcomes } from './effect-cache.js';
 export { mixtureInterval, type MixtureSummary } from './interval.js';
 export { expandSegments, resolveSegment, SegmentError, type Segment, type SegmentBy } from './segments.js';
 export { upliftTable, type UpliftQuery, type UpliftRow, type UpliftTable, type ValueInterval } from './uplift.js';
+export {
+  whatIf,
+  DEFAULT_WHATIF_DRAWS,
+  MAX_POSTED_ROWS,
+  MIN_GRAPH_DRAWS,
+  WHATIF_METHOD,
+  type WhatIfEffect,
+  type WhatIfGraphPart,
+  type WhatIfPrediction,
+  type WhatIfQuery,
+  type WhatIfResult,
+  type WhatIfSummary,
+  type WhatIfUnit,
+} from './what-if.js';

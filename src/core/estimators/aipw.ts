@@ -11,8 +11,9 @@
  * ψ_a − ψ_b over √n (the influence-function variance). Nuisances for the units of fold k are
  * fitted on the other folds (folds stratified by arm); `folds: 1` fits and predicts in sample.
  *
- * Propensities: logistic regression for two arms, softmax regression for more (all arms of
- * the treatment are modelled; the contrast uses arm a and reference b). Propensities are
+ * Propensities: logistic regression for two arms; for more, one logistic regression per
+ * contrasted arm (that arm against all others) by default, or softmax regression over all arms
+ * (`propensity: 'softmax'`). Propensities are
  * clipped to [0.01, 0.99] by default before weighting, a common practice that bounds the
  * weights at 100 (compare the 1%/99% truncation studied by Lee, Lessler & Stuart 2011);
  * the share of clipped units is reported.
@@ -42,6 +43,11 @@ export interface AipwOptions {
   readonly level?: number;
   /** For a categorical outcome: the level whose probability is the outcome. */
   readonly outcomeLevel?: ArmValue;
+  /**
+   * Propensity form for more than two arms: 'one-vs-rest' (default; one logistic regression per
+   * contrasted arm) or 'softmax' (one multinomial model over all arms).
+   */
+  readonly propensity?: 'one-vs-rest' | 'softmax';
 }
 
 /** What to estimate. */
@@ -72,7 +78,7 @@ export interface AipwResult {
   readonly n: number;
   readonly dropped: number;
   readonly folds: number;
-  readonly propensityModel: 'logistic' | 'softmax';
+  readonly propensityModel: 'logistic' | 'softmax' | 'one-vs-rest';
   readonly outcomeModel: OutcomeFamily;
   /** Share of units whose propensity for arm a or b was clipped. */
   readonly clippedShare: number;
@@ -92,7 +98,7 @@ export interface AipwScores {
   readonly n: number;
   readonly dropped: number;
   readonly folds: number;
-  readonly propensityModel: 'logistic' | 'softmax';
+  readonly propensityModel: 'logistic' | 'softmax' | 'one-vs-rest';
   readonly outcomeModel: OutcomeFamily;
   /** Share of units with a clipped propensity for at least one listed arm. */
   readonly clippedShare: number;
@@ -182,7 +188,7 @@ export function aipwScores(
     const xTrain = subRows(x, train);
     const cTrain = new Int32Array(train.length);
     for (let i = 0; i < train.length; i++) cTrain[i] = codes[train[i]];
-    const pm = fitPropensity(xTrain, cTrain, k);
+    const pm = fitPropensity(xTrain, cTrain, k, k > 2 && options.propensity !== 'softmax' ? armCodes : null);
     const xTest = subRows(x, test);
     const pTest = predictPropensity(pm, xTest);
     for (let i = 0; i < test.length; i++) {
@@ -219,7 +225,7 @@ export function aipwScores(
     n,
     dropped: frame.nRows - n,
     folds: K,
-    propensityModel: k === 2 ? 'logistic' : 'softmax',
+    propensityModel: k === 2 ? 'logistic' : options.propensity === 'softmax' ? 'softmax' : 'one-vs-rest',
     outcomeModel: family,
     clippedShare: n === 0 ? 0 : clipped / n,
     overlap: armOverlap(prop, codes, k, armCodes, coding.labels),

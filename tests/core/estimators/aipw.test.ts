@@ -49,7 +49,7 @@ describe('AIPW with cross-fitting', () => {
     expect(covered).toBeGreaterThanOrEqual(30);
   });
 
-  it('handles a three-arm categorical treatment (softmax propensity) and categorical adjusters', () => {
+  it('handles a three-arm categorical treatment (one-vs-rest and softmax propensities) and categorical adjusters', () => {
     // G ∈ {a,b,c} uniform; T | G with arm probabilities depending on G; Y = 1 + 2·[T=hi] + 0.5·[T=mid] + 4·[G=c] + N(0,1).
     const rng = Rng.create(5);
     const n = 3000;
@@ -68,8 +68,11 @@ describe('AIPW with cross-fitting', () => {
       col('y', 'continuous', y),
     ]);
     const res = aipw({ frame, treatment: 't', outcome: 'y', adjustment: ['g'], arm: 'hi', reference: 'lo' }, Rng.create(2));
-    expect(res.propensityModel).toBe('softmax');
+    expect(res.propensityModel).toBe('one-vs-rest');
     expect(Math.abs(res.ate - 2)).toBeLessThan(3 * res.se);
+    const soft = aipw({ frame, treatment: 't', outcome: 'y', adjustment: ['g'], arm: 'hi', reference: 'lo' }, Rng.create(2), { propensity: 'softmax' });
+    expect(soft.propensityModel).toBe('softmax');
+    expect(Math.abs(soft.ate - 2)).toBeLessThan(3 * soft.se);
     const mid = aipw({ frame, treatment: 't', outcome: 'y', adjustment: ['g'], arm: 'mid', reference: 'lo' }, Rng.create(2));
     expect(Math.abs(mid.ate - 0.5)).toBeLessThan(3 * mid.se);
     expect(res.overlap.map((o) => o.arm)).toEqual(['hi', 'lo']);

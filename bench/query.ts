@@ -1,0 +1,258 @@
+/**
+ * Query-latency benchmark (`npm run bench:query`): a 20-node nonlinear model (MLP mechanisms,
+ * a 4-level categorical treatment) with 10 graphs and 2,000 reference rows.
+ * Prints p50/p99 of
+ *  - a cold ATE query (fresh EffectCache: simulation of both arms in every graph, adjustment
+ *    sets, AIPW cross-check per distinct adjustment set, intervals, diagnostics),
+ *  - a warm segment query (per-unit outcomes and cross-check scores already cached),
+ *  - an uplift table of 9 segments (quantile bins) × 3 arms against a reference, cold and warm,
+ * and the floating-point rate of the simulation kernel against a tight reference loop (a
+ * fused multiply-add over Float64Arrays) on the same machine.
+ * Writes bench/results/query.json and the "## Queries" section of docs/benchmarks.md.
+ */
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname } from 'node:path';
+import { EffectCache, estimateEffect, upliftTable } from '../src/core/effects/index.js';
+import type { Graph } from '../src/core/graph/graph.js';
+import { topologicalOrder } from '../src/core/graph/topological-order.js';
+import { descendants } from '../src/core/graph/reachability.js';
+import { Rng } from '../src/core/random/rng.js';
+import { MECH_HIDDEN, MECH_N_IN, MECH_N_OUT, MECH_STRIDE, type CompiledModel } from '../src/core/scm/compiled-model.js';
+import { fitModel } from '../src/core/scm/fit-model.js';
+import { affectedNodes } from '../src/core/effects/counterfactual.js';
+import { generateDataset } from '../src/core/synthetic/index.js';
+
+const P = 20;
+const GRAPHS = 10;
+const ROWS = 2000;
+
+function pct(xs: number[], q: number): number {
+  const s = xs.slice().sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.floor(q * s.length))];
+}
+
+function perturb(g: Graph, rng: Rng): Graph {
+  for (;;) {
+    const adj = g.adj.slice();
+    const edges: Array<[number, number]> = [];
+    for (let i = 0; i < g.n; i++) for (let j = 0; j < g.n; j++) if (adj[i * g.n + j] === 1) edges.push([i, j]);
+    const changes = 1 + rng.int(3);
+    for (let c = 0; c < changes; c++) {
+      const [i, j] = edges[rng.int(edges.length)];
+      adj[i * g.n + j] = 0;
+      if (rng.uniform() < 0.5) adj[j * g.n + i] = 1;
+    }
+    const h = { n: g.n, names: g.names, adj };
+    if (topologicalOrder(h)) return h;
+  }
+}
+
+function buildModel(): { model: CompiledModel; treatment: string; outcome: string; segmentVar: string; fitSeconds: number } {
+  for (let seed = 1; ; seed++) {
+    const ds = generateDataset(
+      { graph: 'er', nodes: P, expectedEdges: 30, rows: ROWS, mechanism: 'mlp', noise: 'gaussian', categoricalShare: 0.15, categoricalLevels: 4 },
+      seed,
+    );
+    const g = ds.graph;
+    const kinds = ds.frame.columns.map((c) => c.kind);
+    // Treatment: a categorical node with the most continuous descendants.
+    let t = -1;
+    let best = 0;
+    for (let j = 0; j < P; j++) {
+      if (kinds[j] !== 'categorical') continue;
+      const de = descendants(g, j);
+      let cnt = 0;
+      for (let k = 0; k < P; k++) if (de[k] === 1 && kinds[k] === 'continuous') cnt++;
+      if (cnt > best) (best = cnt), (t = j);
+    }
+    if (t < 0 || best < 3) continue;
+    const rng = Rng.create(seed);
+    const graphs = [{ graph: g, weight: 0.4 }];
+    for (let k = 1; k < GRAPHS; k++) graphs.push({ graph: perturb(g, rng.stream(k)), weight: 0.6 / (GRAPHS - 1) });
+    // Outcome: the continuous descendant of t with the most ancestors in the true graph (a deep node).
+    const de = descendants(g, t);
+    let y = -1;
+    let depth = -1;
+    for (let j = 0; j < P; j++) {
+      if (de[j] !== 1 || kinds[j] !== 'continuous') continue;
+      let a = 0;
+      for (let i = 0; i < P; i++) if (descendants(g, i)[j] === 1) a++;
+      if (a > depth) (depth = a), (y = j);
+    }
+    // Segment variable: continuous, a non-descendant of t in every graph.
+    let s = -1;
+    for (let j = 0; j < P && s < 0; j++) {
+      if (j === t || kinds[j] !== 'continuous') continue;
+      if (graphs.every((w) => descendants(w.graph, t)[j] === 0)) s = j;
+    }
+    if (y < 0 || s < 0) continue;
+    const t0 = performance.now();
+    const model = fitModel(ds.frame, { names: g.names, graphs }, { family: 'mlp', referenceRows: ROWS, seed });
+    return { model, treatment: g.names[t], outcome: g.names[y], segmentVar: g.names[s], fitSeconds: (performance.now() - t0) / 1000 };
+  }
+}
+
+/** Approximate floating-point operations of one simulation of `arms` arms (kernel work only). */
+function simulationFlops(model: CompiledModel, t: number, y: number, arms: number): number {
+  let f = 0;
+  const R = model.nReference;
+  for (let g = 0; g < model.nGraphs; g++) {
+    const nodes = affectedNodes(model, g, t, y);
+    for (const j of nodes) {
+      const m = model.mechanismOf[g * model.p + j];
+      const row = m * MECH_STRIDE;
+      const nIn = model.mechTable[row + MECH_N_IN];
+      const h = model.mechTable[row + MECH_HIDDEN];
+      const k = model.mechTable[row + MECH_N_OUT];
+      // MLP: h·(2·nIn + 2) multiply-adds and normalisation, h tanh (counted as 1 flop each, conservative),
+      // 2h for the output layer, 3 for scale/noise; linear/logistic/softmax: 2·nIn·k + small.
+      f += h > 0 ? h * (2 * nIn + 2) + h + 2 * h + 3 : 2 * (nIn + 1) * Math.max(1, k) + 3;
+    }
+  }
+  return f * R * arms;
+}
+
+function referenceFlops(): number {
+  const n = 4096;
+  const a = new Float64Array(n).map((_, i) => i * 1e-3);
+  const b = new Float64Array(n).map((_, i) => 1 - i * 1e-4);
+  const c = new Float64Array(n);
+  let reps = 0;
+  const t0 = performance.now();
+  while (performance.now() - t0 < 500) {
+    for (let k = 0; k < 100; k++) for (let i = 0; i < n; i++) c[i] = c[i] * 0.999 + a[i] * b[i];
+    reps += 100;
+  }
+  const secs = (performance.now() - t0) / 1000;
+  if (c[7] === 42) console.log('');
+  return (reps * n * 3) / secs;
+}
+
+function main(): void {
+  console.log(`bench:query — ${P}-node nonlinear model (MLP mechanisms), ${GRAPHS} graphs, ${ROWS} reference rows`);
+  const { model, treatment, outcome, segmentVar, fitSeconds } = buildModel();
+  console.log(`  fitted in ${fitSeconds.toFixed(1)} s: treatment "${treatment}" (4 levels), outcome "${outcome}", segments on "${segmentVar}"; ${model.nMechanisms} mechanisms, R = ${model.nReference}`);
+  const t = model.names.indexOf(treatment);
+  const y = model.names.indexOf(outcome);
+  const R = model.nReference;
+  const vals = model.referenceValues.subarray(model.names.indexOf(segmentVar) * R, (model.names.indexOf(segmentVar) + 1) * R);
+  const sorted = Float64Array.from(vals).sort();
+  const q = (p: number) => sorted[Math.floor(p * (R - 1))];
+
+  const ITER = 60;
+  const cold: number[] = [];
+  for (let i = 0; i < ITER + 5; i++) {
+    const cache = new EffectCache(model);
+    const t0 = performance.now();
+    estimateEffect(cache, { treatment, outcome, arm: 1, reference: 0 });
+    if (i >= 5) cold.push(performance.now() - t0);
+  }
+  const warmCache = new EffectCache(model);
+  estimateEffect(warmCache, { treatment, outcome, arm: 1, reference: 0 });
+  const warm: number[] = [];
+  for (let i = 0; i < ITER * 5; i++) {
+    const lo = q((i % 10) / 20);
+    const hi = q(0.5 + (i % 10) / 20);
+    const t0 = performance.now();
+    estimateEffect(warmCache, { treatment, outcome, arm: 1, reference: 0, segment: { conditions: [{ variable: segmentVar, range: [lo, hi] }] } });
+    warm.push(performance.now() - t0);
+  }
+  const upliftQuery = { treatment, outcome, arms: [1, 2, 3], reference: 0, by: { variable: segmentVar, bins: 9 }, better: 'higher' as const, costs: [0.1, 0.2, 0.3] };
+  const upCold: number[] = [];
+  for (let i = 0; i < ITER + 5; i++) {
+    const cache = new EffectCache(model);
+    const t0 = performance.now();
+    const tab = upliftTable(cache, upliftQuery);
+    if (i >= 5) upCold.push(performance.now() - t0);
+    if (i === 0 && tab.rows.length !== 9) console.log(`  note: ${tab.rows.length} non-empty segments`);
+  }
+  const upCache = new EffectCache(model);
+  upliftTable(upCache, upliftQuery);
+  const upWarm: number[] = [];
+  for (let i = 0; i < ITER; i++) {
+    const t0 = performance.now();
+    upliftTable(upCache, upliftQuery);
+    upWarm.push(performance.now() - t0);
+  }
+  // Simulation-only rate (no cross-check): 4 arms per graph on fresh caches.
+  const flops = simulationFlops(model, t, y, 4);
+  const simTimes: number[] = [];
+  for (let i = 0; i < 40; i++) {
+    const cache = new EffectCache(model);
+    const t0 = performance.now();
+    cache.outcomes(treatment, outcome, [1, 2, 3, 0]);
+    simTimes.push(performance.now() - t0);
+  }
+  const simRate = flops / (pct(simTimes, 0.5) / 1000);
+  const refRate = referenceFlops();
+
+  const res = {
+    nodes: P,
+    graphs: GRAPHS,
+    reference_rows: R,
+    cold_ate_p50_ms: +pct(cold, 0.5).toFixed(3),
+    cold_ate_p99_ms: +pct(cold, 0.99).toFixed(3),
+    warm_segment_p50_ms: +pct(warm, 0.5).toFixed(3),
+    warm_segment_p99_ms: +pct(warm, 0.99).toFixed(3),
+    uplift_p50_ms: +pct(upCold, 0.5).toFixed(3),
+    uplift_p99_ms: +pct(upCold, 0.99).toFixed(3),
+    uplift_warm_p50_ms: +pct(upWarm, 0.5).toFixed(3),
+    uplift_warm_p99_ms: +pct(upWarm, 0.99).toFixed(3),
+    simulation_gflops: +(simRate / 1e9).toFixed(3),
+    reference_gflops: +(refRate / 1e9).toFixed(3),
+    flops_ratio: +(simRate / refRate).toFixed(3),
+  };
+  console.log('');
+  console.log('| query | p50 ms | p99 ms | target p50 |');
+  console.log('|---|---|---|---|');
+  console.log(`| cold ATE (fresh cache, incl. AIPW cross-check) | ${res.cold_ate_p50_ms} | ${res.cold_ate_p99_ms} | ≤ 30 |`);
+  console.log(`| warm segment (CATE) | ${res.warm_segment_p50_ms} | ${res.warm_segment_p99_ms} | ≤ 2 |`);
+  console.log(`| uplift 9 segments × 3 arms, cold | ${res.uplift_p50_ms} | ${res.uplift_p99_ms} | ≤ 30 |`);
+  console.log(`| uplift 9 segments × 3 arms, warm | ${res.uplift_warm_p50_ms} | ${res.uplift_warm_p99_ms} | |`);
+  console.log(`\nsimulation kernel ${res.simulation_gflops} GFLOP/s vs reference loop ${res.reference_gflops} GFLOP/s: ratio ${res.flops_ratio}`);
+  mkdirSync('bench/results', { recursive: true });
+  writeFileSync('bench/results/query.json', JSON.stringify(res, null, 2) + '\n');
+  const table = [
+    '| query | p50 ms | p99 ms | target p50 |',
+    '|---|---|---|---|',
+    `| cold ATE (fresh cache, incl. AIPW cross-check) | ${res.cold_ate_p50_ms} | ${res.cold_ate_p99_ms} | ≤ 30 |`,
+    `| warm segment (CATE) | ${res.warm_segment_p50_ms} | ${res.warm_segment_p99_ms} | ≤ 2 |`,
+    `| uplift 9 segments × 3 arms, cold (one simulation pass) | ${res.uplift_p50_ms} | ${res.uplift_p99_ms} | ≤ 30 |`,
+    `| uplift 9 segments × 3 arms, warm | ${res.uplift_warm_p50_ms} | ${res.uplift_warm_p99_ms} | |`,
+  ].join('\n');
+  updateSection(
+    'docs/benchmarks.md',
+    '## Queries',
+    [
+      'Command: `npm run bench:query` (one process, one core; figures from the last run, machine shared with other work).',
+      '',
+      `${P}-node nonlinear model (random MLP mechanisms from src/core/synthetic, MLP family fitted), ${GRAPHS} graphs (the true DAG at weight 0.4 and 9 perturbed DAGs), ${R} reference rows; 4-level categorical treatment.`,
+      '',
+      table,
+      '',
+      `Simulation kernel: ${res.simulation_gflops} GFLOP/s against ${res.reference_gflops} GFLOP/s for a tight fused multiply-add loop over Float64Arrays: ratio ${res.flops_ratio} (tanh counted as one flop). JSON: bench/results/query.json.`,
+    ].join('\n'),
+  );
+}
+
+/** Replace (or append) one "## Heading" section of a markdown file; creates it with "# Benchmarks" when missing. */
+function updateSection(path: string, heading: string, body: string): void {
+  mkdirSync(dirname(path), { recursive: true });
+  const text = existsSync(path) ? readFileSync(path, 'utf8') : '# Benchmarks\n';
+  const lines = text.split('\n');
+  const start = lines.findIndex((l) => l.trim() === heading);
+  const block = [heading, '', body.trimEnd(), ''];
+  let out: string[];
+  if (start < 0) {
+    out = [...lines];
+    while (out.length > 0 && out[out.length - 1].trim() === '') out.pop();
+    out.push('', ...block);
+  } else {
+    let end = start + 1;
+    while (end < lines.length && !/^## /.test(lines[end])) end++;
+    out = [...lines.slice(0, start), ...block, ...lines.slice(end)];
+  }
+  writeFileSync(path, out.join('\n').replace(/\n*$/, '\n'));
+}
+
+main();

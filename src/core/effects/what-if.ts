@@ -1,0 +1,551 @@
+/**
+ * What-if on posted units: for each row a caller sends, the outcome it would have under each
+ * arm of the treatment, and the effect of each arm against a reference arm — a per-unit
+ * counterfactual (Pearl 2009, ch. 7: abduction, action, prediction) mixed over the graph set.
+ *
+ * Per graph g (weight w_g) and row:
+ *  1. Abduction (scm/abduct-rows.ts): the row's given values are kept and the noise of every
+ *     given variable is abducted from its value and its parents'; variables the row does not
+ *     give get their noise drawn from the mechanism (several draws, weighted by how well they
+ *     explain the given values). The treatment's given value is part of the factual world: it
+ *     explains its descendants' given values (and is where a shift starts from).
+ *  2. Action: the treatment is set / shifted / set by the policy, identically for every draw.
+ *  3. Prediction: descendants of the treatment that lead to the outcome are recomputed from
+ *     their noise; everything else keeps its factual value. All arms share the draws (common
+ *     random numbers), so the effect per draw is a paired difference.
+ * A discrete outcome is reported as the probability of `outcomeLevel` (binary: level 1): per
+ * draw, the share of the outcome's own noise posterior (an interval of u, or all of [0, 1) when
+ * not given) that yields the level under the arm — so a given outcome is reproduced with
+ * probability 1 under the factual arm.
+ * Draws per row: a row whose answer is fully determined (every variable the query reads is
+ * given, the recomputed ones continuous) needs one unit per graph; otherwise graph g gets
+ * max(MIN_GRAPH_DRAWS, round(draws · w_g)) units. Pooled over graphs with weights w_g × (the
+ * draw's normalised likelihood weight), the estimate is the weighted mean and the interval the
+ * weighted central quantiles; the per-graph breakdown does the same within each graph.
+ */
+import type { Rng } from '../random/rng.js';
+import { abductRows, encodeRows, MAX_POSTED_ROWS, type PostedValue, processMask, rowsWorkspace } from '../scm/abduct-rows.js';
+import type { CompiledModel } from '../scm/compiled-model.js';
+import { KIND_CATEGORICAL, KIND_CONTINUOUS } from '../scm/compiled-model.js';
+import type { InterventionValue } from '../scm/intervention.js';
+import { conditionHolds, InterventionError, valueCode, variableIndexOf } from '../scm/intervention.js';
+import { applyNoise, mechanismOutput } from '../scm/kernel.js';
+import { descendantMask, pathProbability } from '../scm/model-access.js';
+import type { Arm, ResolvedArm } from './arms.js';
+import { ARM_OBSERVE, ARM_POLICY, ARM_SCALE, ARM_SET, ARM_SHIFT, armKey, resolveArm } from './arms.js';
+import { queryCautions } from './cautions.js';
+import { affectedNodes } from './counterfactual.js';
+
+export { MAX_POSTED_ROWS };
+
+/** Default number of draws per row for values not given. */
+export const DEFAULT_WHATIF_DRAWS = 200;
+/** Fewest draws a graph of positive weight gets for a row that needs draws. */
+export const MIN_GRAPH_DRAWS = 25;
+
+/** A what-if question on posted units. */
+export interface WhatIfQuery {
+  readonly treatment: string;
+  readonly outcome: string;
+  /** Arms to compare (at least one). */
+  readonly arms: readonly Arm[];
+  /** Arm the effects are taken against: one of `arms` (added if absent). Default the first arm. */
+  readonly reference?: Arm;
+  /** For a categorical outcome: the level whose probability is the outcome (binary: default level 1). */
+  readonly outcomeLevel?: InterventionValue;
+  /** Interval level, default 0.9. */
+  readonly level?: number;
+  /** Draws per row for values not given (split over the graphs by weight), default 200, at most 10000. */
+  readonly draws?: number;
+}
+
+/** An estimate with its interval. */
+export interface WhatIfSummary {
+  readonly estimate: number;
+  readonly lower: number;
+  readonly upper: number;
+}
+
+/** One graph's part of a per-unit answer. */
+export interface WhatIfGraphPart extends WhatIfSummary {
+  readonly graph: number;
+  readonly weight: number;
+  /** Whether the graph has a directed path treatment ⇝ outcome (if not, every arm predicts the same). */
+  readonly causalPath: boolean;
+}
+
+/** Predicted outcome of one unit under one arm. */
+export interface WhatIfPrediction extends WhatIfSummary {
+  readonly arm: string;
+  readonly perGraph: readonly WhatIfGraphPart[];
+}
+
+/** Effect of one arm against the reference for one unit. */
+export interface WhatIfEffect extends WhatIfSummary {
+  readonly arm: string;
+  readonly reference: string;
+  readonly perGraph: readonly WhatIfGraphPart[];
+}
+
+/** The answer for one posted row. */
+export interface WhatIfUnit {
+  /** Index of the row in the request. */
+  readonly row: number;
+  /** Variables the row gives that the query reads (in some graph). */
+  readonly used: readonly string[];
+  /** Variables the query reads that the row does not give: drawn from the model, they widen the interval. */
+  readonly missing: readonly string[];
+  /** Variables the row gives that cannot affect the answer (for example descendants of the outcome). */
+  readonly ignored: readonly string[];
+  /** Units simulated for the row over all graphs. */
+  readonly draws: number;
+  /**
+   * Smallest Kish effective sample size (Σω)²/Σω² of the row's likelihood weights over the graphs
+   * where it has several draws (equal to those draws when nothing weights them); 1 for a row that needs no draws.
+   */
+  readonly effectiveDraws: number;
+  readonly predictions: readonly WhatIfPrediction[];
+  /** One per arm other than the reference. */
+  readonly effects: readonly WhatIfEffect[];
+}
+
+export interface WhatIfResult {
+  readonly treatment: string;
+  readonly outcome: string;
+  /** 'probability' for a discrete outcome (of `outcomeLevel`), else 'value'. */
+  readonly scale: 'value' | 'probability';
+  readonly outcomeLevel: string | null;
+  readonly arms: readonly string[];
+  readonly reference: string;
+  readonly level: number;
+  /** Probability over the graph set that a directed path treatment ⇝ outcome exists. */
+  readonly pathProbability: number;
+  readonly units: readonly WhatIfUnit[];
+  readonly method: string;
+  readonly cautions: readonly string[];
+}
+
+/** Method note of what-if answers. */
+export const WHATIF_METHOD =
+  'Per graph: abduction of each row\'s noise from its given values, draws (likelihood-weighted) for values not given, ' +
+  'the arm applied, descendants of the treatment recomputed with common random numbers; estimate = weighted mean over ' +
+  'graphs and draws, interval = weighted central quantiles of the pooled draws (graph uncertainty and the unit\'s unknown noise).';
+
+/**
+ * Per-unit counterfactual outcomes and effects for posted rows (at most MAX_POSTED_ROWS).
+ * Throws InterventionError for unknown variables, levels or arms, RangeError for bad sizes.
+ */
+export function whatIf(
+  model: CompiledModel,
+  rows: ReadonlyArray<Readonly<Record<string, PostedValue>>>,
+  q: WhatIfQuery,
+  rng: Rng,
+): WhatIfResult {
+  const level = q.level ?? 0.9;
+  if (!(level > 0 && level < 1)) throw new RangeError(`level must be in (0, 1), got ${level}`);
+  const D = q.draws ?? DEFAULT_WHATIF_DRAWS;
+  if (!(Number.isInteger(D) && D >= 1 && D <= 10000)) throw new RangeError(`draws must be an integer in 1..10000, got ${D}`);
+  const t = variableIndexOf(model, q.treatment);
+  const y = variableIndexOf(model, q.outcome);
+  if (t === y) throw new InterventionError(`treatment and outcome are the same variable "${q.treatment}"`);
+  if (q.arms.length === 0) throw new RangeError('a what-if needs at least one arm');
+  const armList = q.arms.slice();
+  let ref = 0;
+  if (q.reference !== undefined) {
+    ref = armList.findIndex((a) => armKey(a) === armKey(q.reference as Arm));
+    if (ref < 0) ref = armList.push(q.reference) - 1;
+  }
+  const arms = armList.map((a) => resolveArm(model, t, a));
+  const yKind = model.kinds[y];
+  const lv = yKind === KIND_CONTINUOUS ? -1 : outcomeCode(model, y, q.outcomeLevel);
+  const posted = encodeRows(model, rows);
+  const n = posted.n;
+  const p = model.p;
+  const G = model.nGraphs;
+  const A = arms.length;
+  const pv = posted.values;
+
+  const T0 = performance.now();
+  // ---- plan: nodes per graph, draws per row and graph, pooled layout ----
+  const reads: number[] = [];
+  for (const a of arms) for (const v of a.reads) reads.push(v);
+  const process: Uint8Array[] = [];
+  const affected: Int32Array[] = [];
+  const causal = new Uint8Array(G);
+  const drawsOf = new Int32Array(G * n);
+  const readAny = new Uint8Array(p);
+  for (let g = 0; g < G; g++) {
+    const de = descendantMask(model, g, [t]);
+    for (const v of reads) {
+      if (de[v] === 1 || v === t) {
+        throw new InterventionError(`policy for "${q.treatment}" reads "${model.names[v]}", a descendant of the treatment in graph ${g}; rules may only read pre-treatment variables`);
+      }
+    }
+    causal[g] = de[y];
+    const proc = processMask(model, g, posted, [y, t, ...reads]);
+    const aff = affectedNodes(model, g, t, y);
+    process.push(proc);
+    affected.push(aff);
+    if (!(model.graphWeights[g] > 0)) continue;
+    for (let j = 0; j < p; j++) readAny[j] |= proc[j];
+    let discreteRecomputed = false;
+    for (let k = 0; k < aff.length; k++) if (aff[k] !== y && model.kinds[aff[k]] !== KIND_CONTINUOUS) discreteRecomputed = true;
+    const Dg = Math.max(Math.min(D, MIN_GRAPH_DRAWS), Math.round(D * model.graphWeights[g]));
+    for (let r = 0; r < n; r++) {
+      let need = discreteRecomputed;
+      for (let j = 0; j < p && !need; j++) need = proc[j] === 1 && Number.isNaN(pv[j * n + r]);
+      drawsOf[g * n + r] = need ? Dg : 1;
+    }
+  }
+  const poolStart = new Int32Array(n + 1);
+  const graphOff = new Int32Array(G * n);
+  let maxUnits = 1;
+  let maxBlock = 1;
+  for (let r = 0; r < n; r++) {
+    let off = 0;
+    for (let g = 0; g < G; g++) {
+      graphOff[g * n + r] = off;
+      off += drawsOf[g * n + r];
+    }
+    poolStart[r + 1] = poolStart[r] + off;
+    if (off > maxBlock) maxBlock = off;
+  }
+  for (let g = 0; g < G; g++) {
+    let s = 0;
+    for (let r = 0; r < n; r++) s += drawsOf[g * n + r];
+    if (s > maxUnits) maxUnits = s;
+  }
+  const pool = poolStart[n];
+
+  const T1 = performance.now();
+  // ---- simulate: per graph, abduct once, then every arm on the same units ----
+  const outcome = new Float64Array(A * pool);
+  const weight = new Float64Array(pool);
+  const ess = new Float64Array(n).fill(Infinity);
+  const essShare = new Float64Array(n).fill(1);
+  const ws = rowsWorkspace(model, maxUnits);
+  const work = new Float64Array(p * maxUnits);
+  const yLo = new Float64Array(maxUnits);
+  const yHi = new Float64Array(maxUnits);
+  const yMechOf = (g: number) => model.mechanismOf[g * p + y];
+  for (let g = 0; g < G; g++) {
+    const wg = model.graphWeights[g];
+    if (!(wg > 0)) continue;
+    const units = abductRows(model, g, posted, process[g], drawsOf.subarray(g * n, (g + 1) * n), rng.stream(g), ws);
+    const N = units.n;
+    const V = units.values;
+    const rs = units.rowStart;
+    if (lv >= 0) outcomeIntervals(model, yMechOf(g), y, posted, V, rs, N, ws.scratch, ws.mean, yLo, yHi);
+    // Likelihood weights, normalised within (row, graph) to sum to w_g.
+    for (let r = 0; r < n; r++) {
+      let mx = -Infinity;
+      for (let u = rs[r]; u < rs[r + 1]; u++) if (units.logWeight[u] > mx) mx = units.logWeight[u];
+      let s = 0;
+      let s2 = 0;
+      for (let u = rs[r]; u < rs[r + 1]; u++) {
+        const e = Math.exp(units.logWeight[u] - mx);
+        ws.tmp[u] = e;
+        s += e;
+        s2 += e * e;
+      }
+      const d = rs[r + 1] - rs[r];
+      if (d > 1) {
+        const e = (s * s) / s2;
+        if (e < ess[r]) ess[r] = e;
+        if (e / d < essShare[r]) essShare[r] = e / d;
+      }
+      const base = poolStart[r] + graphOff[g * n + r] - rs[r];
+      for (let u = rs[r]; u < rs[r + 1]; u++) weight[base + u] = (wg * ws.tmp[u]) / s;
+    }
+    work.set(V.subarray(0, p * N));
+    const aff = affected[g];
+    for (let a = 0; a < A; a++) {
+      applyArm(model, arms[a], t, V, work, N);
+      for (let k = 0; k < aff.length; k++) {
+        const j = aff[k];
+        if (j === y) continue;
+        const m = model.mechanismOf[g * p + j];
+        mechanismOutput(model, m, work, N, ws.scratch, ws.mean);
+        applyNoise(model, j, ws.mean, units.noise, j * N, N, work, j * N);
+      }
+      const out = ws.tmp;
+      if (lv < 0) {
+        if (causal[g] === 1) {
+          mechanismOutput(model, yMechOf(g), work, N, ws.scratch, ws.mean);
+          for (let u = 0; u < N; u++) out[u] = ws.mean[u] + units.noise[y * N + u];
+        } else for (let u = 0; u < N; u++) out[u] = V[y * N + u];
+      } else {
+        mechanismOutput(model, yMechOf(g), work, N, ws.scratch, ws.mean);
+        levelProbability(model, y, lv, ws.mean, yLo, yHi, N, out);
+      }
+      for (let r = 0; r < n; r++) {
+        const base = a * pool + poolStart[r] + graphOff[g * n + r] - rs[r];
+        for (let u = rs[r]; u < rs[r + 1]; u++) outcome[base + u] = out[u];
+      }
+      for (let k = 0; k < aff.length; k++) work.set(V.subarray(aff[k] * N, (aff[k] + 1) * N), aff[k] * N);
+      work.set(V.subarray(t * N, (t + 1) * N), t * N);
+    }
+  }
+
+  const T2 = performance.now();
+  // ---- summaries per row ----
+  const labels = arms.map((a) => a.label);
+  const keys = new Float64Array(maxBlock);
+  const kw = new Float64Array(maxBlock);
+  const diff = new Float64Array(pool);
+  const units: WhatIfUnit[] = [];
+  const lowEss: number[] = [];
+  for (let r = 0; r < n; r++) {
+    const s0 = poolStart[r];
+    const len = poolStart[r + 1] - s0;
+    const parts = (vals: Float64Array, off: number): WhatIfGraphPart[] => {
+      const out: WhatIfGraphPart[] = [];
+      for (let g = 0; g < G; g++) {
+        const wg = model.graphWeights[g];
+        if (!(wg > 0)) continue;
+        const o = off + s0 + graphOff[g * n + r];
+        out.push({ graph: g, weight: wg, causalPath: causal[g] === 1, ...summarise(vals, o, weight, s0 + graphOff[g * n + r], drawsOf[g * n + r], level, keys, kw) });
+      }
+      return out;
+    };
+    const predictions: WhatIfPrediction[] = [];
+    for (let a = 0; a < A; a++) {
+      predictions.push({ arm: labels[a], ...summarise(outcome, a * pool + s0, weight, s0, len, level, keys, kw), perGraph: parts(outcome, a * pool) });
+    }
+    const effects: WhatIfEffect[] = [];
+    for (let a = 0; a < A; a++) {
+      if (a === ref) continue;
+      for (let k = s0; k < s0 + len; k++) diff[k] = outcome[a * pool + k] - outcome[ref * pool + k];
+      effects.push({ arm: labels[a], reference: labels[ref], ...summarise(diff, s0, weight, s0, len, level, keys, kw), perGraph: parts(diff, 0) });
+    }
+    const used: string[] = [];
+    const missing: string[] = [];
+    const ignored: string[] = [];
+    for (let j = 0; j < p; j++) {
+      const given = !Number.isNaN(pv[j * n + r]);
+      if (readAny[j] === 1) (given ? used : missing).push(model.names[j]);
+      else if (given) ignored.push(model.names[j]);
+    }
+    const e = Number.isFinite(ess[r]) ? ess[r] : 1;
+    if (essShare[r] < 0.1) lowEss.push(r);
+    units.push({ row: r, used, missing, ignored, draws: len, effectiveDraws: e, predictions, effects });
+  }
+
+  const T3 = performance.now(); (globalThis as any).__wi = [(globalThis as any).__wi?.[0] + T1 - T0 || T1-T0, (globalThis as any).__wi?.[1] + T2 - T1 || T2-T1, (globalThis as any).__wi?.[2] + T3 - T2 || T3-T2];
+  const pathP = pathProbability(model, t, y);
+  const cautions = queryCautions(q.treatment, q.outcome, pathP, 0, [], true);
+  cautions.push(
+    'Intervals cover the graph set and what is unknown about each unit (values it does not give, and the noise of discrete variables, which data only bound); they do not include the estimation error of the fitted mechanisms.',
+    'Values a row does not give are drawn from the model given their parents and weighted by how well they explain the values it does give (likelihood weighting).',
+  );
+  if (model.kinds.some((k, j) => k !== KIND_CONTINUOUS && readAny[j] === 1)) {
+    cautions.push('Counterfactuals of discrete variables use the monotone (inverse-CDF) coupling of their noise; observational data alone do not identify them.');
+  }
+  if (lowEss.length > 0) {
+    cautions.push(`Row(s) ${lowEss.slice(0, 20).join(', ')}${lowEss.length > 20 ? ', …' : ''} have few effective draws: their given values are unlikely under the model for most draws of what they leave out, so their intervals are rough.`);
+  }
+  return {
+    treatment: q.treatment,
+    outcome: q.outcome,
+    scale: lv < 0 ? 'value' : 'probability',
+    outcomeLevel: lv < 0 ? null : (model.levels[y]?.[lv] ?? String(lv)),
+    arms: labels,
+    reference: labels[ref],
+    level,
+    pathProbability: pathP,
+    units,
+    method: WHATIF_METHOD,
+    cautions,
+  };
+}
+
+function outcomeCode(model: CompiledModel, y: number, outcomeLevel: InterventionValue | undefined): number {
+  if (outcomeLevel === undefined) {
+    if (model.kinds[y] === KIND_CATEGORICAL) {
+      throw new InterventionError(`outcome "${model.names[y]}" is categorical: name the level whose probability you want (levels: ${(model.levels[y] ?? []).join(', ')})`);
+    }
+    return 1;
+  }
+  return valueCode(model, y, outcomeLevel);
+}
+
+/** The treatment column of `work` under one arm (from the factual values V). */
+function applyArm(model: CompiledModel, arm: ResolvedArm, t: number, V: Float64Array, work: Float64Array, N: number): void {
+  const c = t * N;
+  switch (arm.action) {
+    case ARM_OBSERVE:
+      return;
+    case ARM_SET:
+      work.fill(arm.amount, c, c + N);
+      return;
+    case ARM_SHIFT:
+      for (let u = 0; u < N; u++) work[c + u] = V[c + u] + arm.amount;
+      return;
+    case ARM_SCALE:
+      for (let u = 0; u < N; u++) work[c + u] = V[c + u] * arm.amount;
+      return;
+    case ARM_POLICY:
+      for (let u = 0; u < N; u++) {
+        let val = arm.otherwise;
+        for (const rule of arm.rules) {
+          let ok = true;
+          for (const cond of rule.conditions) if (!conditionHolds(cond, V[cond.variable * N + u])) ok = false;
+          if (ok) {
+            val = rule.value;
+            break;
+          }
+        }
+        work[c + u] = val;
+      }
+      return;
+    default:
+      throw new RangeError(`unknown arm action ${arm.action}`);
+  }
+}
+
+/**
+ * The posterior interval [lo, hi) of the discrete outcome's own noise u per unit: the interval
+ * of its given level under the factual parents, or [0, 1) when the row does not give it.
+ */
+function outcomeIntervals(
+  model: CompiledModel,
+  m: number,
+  y: number,
+  posted: { n: number; values: Float64Array },
+  V: Float64Array,
+  rs: Int32Array,
+  N: number,
+  scratch: Float64Array,
+  mean: Float64Array,
+  lo: Float64Array,
+  hi: Float64Array,
+): void {
+  mechanismOutput(model, m, V, N, scratch, mean);
+  const n = posted.n;
+  const binary = model.kinds[y] !== KIND_CATEGORICAL;
+  const k = model.nLevels[y];
+  for (let r = 0; r < n; r++) {
+    const x = posted.values[y * n + r];
+    for (let u = rs[r]; u < rs[r + 1]; u++) {
+      if (Number.isNaN(x)) {
+        lo[u] = 0;
+        hi[u] = 1;
+      } else if (binary) {
+        lo[u] = x === 1 ? 0 : mean[u];
+        hi[u] = x === 1 ? mean[u] : 1;
+      } else {
+        let a = 0;
+        for (let c = 0; c < x; c++) a += mean[c * N + u];
+        lo[u] = a;
+        hi[u] = x === k - 1 ? 1 : a + mean[x * N + u];
+      }
+    }
+  }
+}
+
+/** P(outcome = lv) per unit: overlap of the level's u-interval under the arm with the posterior [lo, hi). */
+function levelProbability(model: CompiledModel, y: number, lv: number, mean: Float64Array, lo: Float64Array, hi: Float64Array, N: number, out: Float64Array): void {
+  const binary = model.kinds[y] !== KIND_CATEGORICAL;
+  const k = model.nLevels[y];
+  for (let u = 0; u < N; u++) {
+    let L: number;
+    let U: number;
+    if (binary) {
+      // Binary coupling: x = 1 ⇔ u < P(x = 1).
+      L = lv === 1 ? 0 : mean[u];
+      U = lv === 1 ? mean[u] : 1;
+    } else {
+      L = 0;
+      for (let c = 0; c < lv; c++) L += mean[c * N + u];
+      U = lv === k - 1 ? 1 : L + mean[lv * N + u];
+    }
+    const width = hi[u] - lo[u];
+    if (width > 1e-12) out[u] = Math.max(0, Math.min(U, hi[u]) - Math.max(L, lo[u])) / width;
+    else out[u] = lo[u] >= L && lo[u] < U ? 1 : 0;
+  }
+}
+
+/** Weighted mean and central `level` quantiles of vals[vOff ..+len] with weights w[wOff ..+len]. */
+function summarise(vals: Float64Array, vOff: number, w: Float64Array, wOff: number, len: number, level: number, keys: Float64Array, kw: Float64Array): WhatIfSummary {
+  let sw = 0;
+  let s = 0;
+  let min = Infinity;
+  let max = -Infinity;
+  for (let k = 0; k < len; k++) {
+    const v = vals[vOff + k];
+    sw += w[wOff + k];
+    s += w[wOff + k] * v;
+    keys[k] = v;
+    kw[k] = w[wOff + k];
+    if (v < min) min = v;
+    if (v > max) max = v;
+  }
+  const estimate = s / sw;
+  // All draws equal up to rounding (a determined answer): a point, without rounding noise in the bounds.
+  if (max - min <= 1e-12 * Math.max(1, Math.abs(estimate))) return { estimate, lower: estimate, upper: estimate };
+  sortPairs(keys, kw, 0, len - 1);
+  const alpha = (1 - level) / 2;
+  return { estimate, lower: weightedQuantile(keys, kw, len, alpha * sw), upper: weightedQuantile(keys, kw, len, (1 - alpha) * sw) };
+}
+
+/** Smallest sorted key whose cumulative weight reaches `target`. */
+function weightedQuantile(keys: Float64Array, kw: Float64Array, len: number, target: number): number {
+  let c = 0;
+  for (let k = 0; k < len; k++) {
+    c += kw[k];
+    if (c >= target * (1 - 1e-12)) return keys[k];
+  }
+  return keys[len - 1];
+}
+
+/** In-place sort of keys[lo..hi] ascending, carrying the weights along (quicksort, insertion below 16). */
+function sortPairs(keys: Float64Array, kw: Float64Array, lo: number, hi: number): void {
+  while (hi - lo > 16) {
+    const mid = (lo + hi) >>> 1;
+    const pivot = median3(keys[lo], keys[mid], keys[hi]);
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (keys[i] < pivot) i++;
+      while (keys[j] > pivot) j--;
+      if (i <= j) {
+        swap(keys, kw, i, j);
+        i++;
+        j--;
+      }
+    }
+    // Recurse into the smaller side, loop on the larger (bounded stack).
+    if (j - lo < hi - i) {
+      sortPairs(keys, kw, lo, j);
+      lo = i;
+    } else {
+      sortPairs(keys, kw, i, hi);
+      hi = j;
+    }
+  }
+  for (let i = lo + 1; i <= hi; i++) {
+    const k = keys[i];
+    const w = kw[i];
+    let j = i - 1;
+    while (j >= lo && keys[j] > k) {
+      keys[j + 1] = keys[j];
+      kw[j + 1] = kw[j];
+      j--;
+    }
+    keys[j + 1] = k;
+    kw[j + 1] = w;
+  }
+}
+
+function median3(a: number, b: number, c: number): number {
+  return a < b ? (b < c ? b : a < c ? c : a) : a < c ? a : b < c ? c : b;
+}
+
+function swap(keys: Float64Array, kw: Float64Array, i: number, j: number): void {
+  const k = keys[i];
+  keys[i] = keys[j];
+  keys[j] = k;
+  const w = kw[i];
+  kw[i] = kw[j];
+  kw[j] = w;
+}
