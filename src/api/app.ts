@@ -62,7 +62,8 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
     requestIdHeader: 'x-request-id',
     // Streamed uploads can take minutes; do not cut them off.
     requestTimeout: 0,
-    return503OnClosing: true,
+    // Requests arriving while closing get ERR_SERVER_SHUTTING_DOWN from the hook below instead.
+    return503OnClosing: false,
   }).withTypeProvider<ZodTypeProvider>();
 
   // 1. Error mapping and zod compilers.
@@ -114,6 +115,13 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
     shuttingDown = true;
   });
   installMetrics(app, metrics);
+  let closing = false;
+  app.addHook('preClose', async () => {
+    closing = true;
+  });
+  app.addHook('onRequest', async () => {
+    if (closing) throw apiError('ERR_SERVER_SHUTTING_DOWN');
+  });
   app.addHook('onClose', async () => {
     shuttingDown = true;
     if (ownsRedis && redis) redis.disconnect();

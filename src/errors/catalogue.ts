@@ -91,12 +91,12 @@ export const API_ERRORS = {
     title: 'Not found',
     template: 'No route {method} {path}.',
   },
-  ERR_SERVICE_SHUTTING_DOWN: {
+  ERR_SERVER_SHUTTING_DOWN: {
     status: 503,
     title: 'Shutting down',
     template: 'The service is shutting down; retry on another instance.',
   },
-  ERR_INTERNAL: {
+  ERR_SERVER_INTERNAL: {
     status: 500,
     title: 'Internal error',
     template: 'An internal error occurred (request {requestId}).',

@@ -261,7 +261,7 @@ describe.each(backends())('bad input on %s', (backend) => {
     expect(res.statusCode).toBe(500);
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
     const p = res.json();
-    expect(p).toMatchObject({ type: 'ERR_INTERNAL', status: 500, title: 'Internal error' });
+    expect(p).toMatchObject({ type: 'ERR_SERVER_INTERNAL', status: 500, title: 'Internal error' });
     expect(p.detail).not.toMatch(/datasets|relation|SELECT/i);
     expect(p.detail).toContain(p.requestId);
   });

@@ -84,8 +84,8 @@ export function installErrorHandler(app: FastifyInstance, opts: ErrorHandlerOpti
     let err = toFulcrumError(error, request, opts);
     if (err === null || err.status >= 500) {
       request.log.error({ err: error }, 'request failed');
-      if (err === null || err.code === 'ERR_INTERNAL') {
-        err = apiError('ERR_INTERNAL', { requestId: request.id });
+      if (err === null || err.code === 'ERR_SERVER_INTERNAL') {
+        err = apiError('ERR_SERVER_INTERNAL', { requestId: request.id });
       } else {
         // Keep the code and status of a deliberate 5xx (e.g. shutting down) but not its detail fields.
         err = new FulcrumError(err.code, err.status, err.message);

@@ -69,7 +69,7 @@ export interface TestAppOptions {
  * app: a fresh initdb takes seconds, reopening a copy well under one. Built in a private folder
  * and renamed into place, so parallel test files never see a half-made template.
  */
-async function pgliteTemplate(): Promise<string> {
+export async function pgliteTemplate(): Promise<string> {
   const dir = join(process.cwd(), 'migrations');
   const hash = createHash('sha256');
   for (const f of (await readdir(dir)).sort()) hash.update(f).update(await readFile(join(dir, f)));

@@ -1,0 +1,102 @@
+/**
+ * Pins the error catalogue: codes and statuses are a public contract (clients switch on the
+ * problem+json `type`). Changing one must change this list on purpose.
+ */
+import { describe, expect, it } from 'vitest';
+import { fieldName } from '../../src/api/plugins/error-handler.js';
+import { makeProblem, titleFor } from '../../src/api/problem.js';
+import { apiError, formatTemplate } from '../../src/errors/catalogue.js';
+import { ERROR_CATALOGUE } from '../../src/errors/error-catalogue.js';
+import { FulcrumError } from '../../src/errors/fulcrum-error.js';
+
+const PINNED: Record<string, number> = {
+  ERR_AUTH_MISSING_KEY: 401,
+  ERR_AUTH_INVALID_KEY: 401,
+  ERR_AUTH_MISSING_SCOPE: 403,
+  ERR_KEY_NOT_FOUND: 404,
+  ERR_KEY_LAST_ADMIN: 409,
+  ERR_REQUEST_VALIDATION: 400,
+  ERR_REQUEST_MALFORMED_JSON: 400,
+  ERR_REQUEST_EMPTY_BODY: 400,
+  ERR_REQUEST_BODY_TOO_LARGE: 413,
+  ERR_REQUEST_UNSUPPORTED_MEDIA_TYPE: 415,
+  ERR_REQUEST_MULTIPART_NO_FILE: 400,
+  ERR_REQUEST_RATE_LIMITED: 429,
+  ERR_REQUEST_INVALID: 400,
+  ERR_ROUTE_NOT_FOUND: 404,
+  ERR_SERVER_SHUTTING_DOWN: 503,
+  ERR_SERVER_INTERNAL: 500,
+  ERR_DATA_EMPTY_FILE: 400,
+  ERR_DATA_NO_ROWS: 400,
+  ERR_DATA_EMPTY_COLUMN_NAME: 400,
+  ERR_DATA_DUPLICATE_COLUMN: 400,
+  ERR_DATA_COLUMN_NAME_TOO_LONG: 400,
+  ERR_DATA_TOO_MANY_COLUMNS: 400,
+  ERR_DATA_RAGGED_ROW: 400,
+  ERR_DATA_MALFORMED_CSV: 400,
+  ERR_DATA_NOT_A_NUMBER: 400,
+  ERR_DATA_NOT_FINITE: 400,
+  ERR_DATA_NOT_BINARY: 400,
+  ERR_DATA_TOO_MANY_LEVELS: 400,
+  ERR_DATA_UNKNOWN_LEVEL: 400,
+  ERR_DATA_BAD_CELL: 400,
+  ERR_DATA_BAD_SCHEMA: 400,
+  ERR_DATA_SCHEMA_MISMATCH: 400,
+  ERR_DATA_BAD_NAME: 400,
+  ERR_DATA_UNKNOWN_DATASET: 404,
+  ERR_DATA_UNKNOWN_BATCH: 400,
+  ERR_DATA_UNKNOWN_COLUMN: 400,
+};
+
+describe('the error catalogue', () => {
+  it('holds exactly the pinned codes with the pinned statuses', () => {
+    const actual = Object.fromEntries(Object.entries(ERROR_CATALOGUE).map(([code, e]) => [code, e.status]));
+    expect(actual).toEqual(PINNED);
+  });
+
+  it('names every code ERR_<AREA>_<PROBLEM> and gives it a title and a template', () => {
+    for (const [code, entry] of Object.entries(ERROR_CATALOGUE)) {
+      expect(code).toMatch(/^ERR_[A-Z]+_[A-Z0-9_]+$/);
+      expect(entry.title.length).toBeGreaterThan(0);
+      expect(entry.template.length).toBeGreaterThan(0);
+      expect(entry.status).toBeGreaterThanOrEqual(400);
+      expect(entry.status).toBeLessThan(600);
+    }
+  });
+
+  it('fills message templates from params and keeps unknown holes visible', () => {
+    expect(formatTemplate('Row {row}, column "{column}"', { row: 3, column: 'prior_kwh' })).toBe('Row 3, column "prior_kwh"');
+    expect(formatTemplate('limit {limit}', {})).toBe('limit {limit}');
+    const err = apiError('ERR_AUTH_MISSING_SCOPE', { scope: 'admin' });
+    expect(err).toBeInstanceOf(FulcrumError);
+    expect(err).toMatchObject({ code: 'ERR_AUTH_MISSING_SCOPE', status: 403, detail: { scope: 'admin' } });
+    expect(err.message).toBe('This route needs a key with the "admin" scope.');
+  });
+});
+
+describe('problem+json assembly', () => {
+  it('builds the RFC 9457 members and keeps extensions from overwriting them', () => {
+    const p = makeProblem('ERR_DATA_RAGGED_ROW', 400, 'Row 2 has 1 fields but the header has 2 columns.', '/v1/datasets', 'req-1', {
+      row: 2,
+      status: 999,
+      type: 'spoofed',
+    });
+    expect(p).toEqual({
+      type: 'ERR_DATA_RAGGED_ROW',
+      title: 'Ragged row',
+      status: 400,
+      detail: 'Row 2 has 1 fields but the header has 2 columns.',
+      instance: '/v1/datasets',
+      requestId: 'req-1',
+      row: 2,
+    });
+    expect(titleFor('ERR_SOMETHING_NEW')).toBe('Something new');
+  });
+
+  it('names fields the way a reader writes them', () => {
+    expect(fieldName('/columns/0/name')).toBe('columns[0].name');
+    expect(fieldName('/rows/3/1')).toBe('rows[3][1]');
+    expect(fieldName('')).toBe('(root)');
+    expect(fieldName('/name')).toBe('name');
+  });
+});

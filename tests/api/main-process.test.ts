@@ -1,0 +1,84 @@
+/**
+ * The command line as a user runs it: `serve` on the embedded default prints the first admin
+ * key once, answers, and exits cleanly on SIGTERM; `migrate` reports; `worker` and `demo` say
+ * they are not available yet.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { cp, mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { pgliteTemplate } from './helpers/test-app.js';
+
+interface Run {
+  child: ChildProcess;
+  out: () => string;
+  exited: Promise<number | null>;
+}
+
+function run(args: string[], env: Record<string, string>): Run {
+  const child = spawn(process.execPath, ['--import', 'tsx', 'src/main.ts', ...args], {
+    cwd: process.cwd(),
+    env: { PATH: process.env.PATH ?? '', NODE_ENV: 'production', ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let text = '';
+  child.stdout!.on('data', (d) => (text += String(d)));
+  child.stderr!.on('data', (d) => (text += String(d)));
+  const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
+  return { child, out: () => text, exited };
+}
+
+async function waitFor(pred: () => boolean, ms: number): Promise<void> {
+  const end = Date.now() + ms;
+  while (!pred()) {
+    if (Date.now() > end) throw new Error('timed out waiting');
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}
+
+describe('main entry points (embedded back end)', () => {
+  let dir: string;
+  beforeAll(async () => {
+    dir = await mkdtemp(join(tmpdir(), 'fulcrum-main-'));
+    await cp(await pgliteTemplate(), dir, { recursive: true });
+  });
+  afterAll(async () => {
+    await rm(dir, { recursive: true, force: true });
+  });
+
+  it('serve prints the admin key once, answers with it, and exits 0 on SIGTERM', async () => {
+    const r = run(['serve'], { FULCRUM_DATA_DIR: dir, PORT: '0', LOG_LEVEL: 'info' });
+    try {
+      await waitFor(() => /Server listening at http:\/\/127\.0\.0\.1:\d+/.test(r.out()), 60_000);
+      const port = /Server listening at http:\/\/127\.0\.0\.1:(\d+)/.exec(r.out())![1];
+      const key = /(fk_[a-z2-9]+_[A-Za-z0-9_-]+)/.exec(r.out())![1];
+      expect(r.out().split(key).length - 1).toBe(1);
+      const health = await fetch(`http://127.0.0.1:${port}/healthz`);
+      expect(health.status).toBe(200);
+      const keys = await fetch(`http://127.0.0.1:${port}/v1/keys`, { headers: { authorization: `Bearer ${key}` } });
+      expect(keys.status).toBe(200);
+      r.child.kill('SIGTERM');
+      expect(await r.exited).toBe(0);
+      expect(r.out()).toContain('shutting down');
+      // The key is in the terminal banner only: the request log never repeats it.
+      expect(r.out().split(key).length - 1).toBe(1);
+    } finally {
+      if (r.child.exitCode === null) r.child.kill('SIGKILL');
+    }
+  });
+
+  it('migrate reports that nothing is pending on a migrated database', async () => {
+    const r = run(['migrate'], { FULCRUM_DATA_DIR: dir });
+    expect(await r.exited).toBe(0);
+    expect(r.out()).toContain('No pending migrations');
+  });
+
+  it('worker and demo say they are not available yet; a bad environment is named (all exit 2)', async () => {
+    const [worker, demo, bad] = [run(['worker'], {}), run(['demo'], {}), run(['serve'], { PORT: 'eighty' })];
+    expect(await Promise.all([worker.exited, demo.exited, bad.exited])).toEqual([2, 2, 2]);
+    expect(worker.out()).toMatch(/worker is not available yet/);
+    expect(demo.out()).toMatch(/demo is not available yet/);
+    expect(bad.out()).toContain('PORT');
+  });
+});
