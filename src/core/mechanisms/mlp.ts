@@ -1,26 +1,39 @@
 /**
- * One-hidden-layer perceptron mechanisms (tanh-shaped hidden units — activation.ts — and one linear output):
- *  - continuous (`mlp`): x = yCentre + yScale·net(z) + e, squared loss on the standardised target;
- *  - binary (`mlp-bernoulli`): P(x = 1) = sigmoid(net(z)), cross-entropy loss.
- * Trained by mini-batch Adam (Kingma & Ba 2015) with L2 weight decay on the weights, Glorot
- * uniform initialisation (Glorot & Bengio 2010), and early stopping on a held-out split: the
- * parameters of the epoch with the best held-out loss are kept.
+ * One-hidden-layer perceptron mechanisms with a linear skip connection:
+ *  - continuous (`mlp`):  x = lin(z) + yCentre + yScale·net(z) + e;
+ *  - binary (`mlp-bernoulli`): P(x = 1) = sigmoid(lin(z) + net(z));
+ * where lin(z) = L0 + Σ L_k z_k is fitted first on the training rows (ridge least squares, or
+ * logistic regression for a binary node) and kept fixed, and net(z) = b2 + Σ_u w2_u·a(b1_u +
+ * W1_u·z) learns what the linear part misses (a = activation.ts, tanh-shaped). The output
+ * weights start at zero, so training starts from the linear fit and early stopping can only
+ * keep or improve its held-out loss.
+ *
+ * net is trained by mini-batch Adam (Kingma & Ba 2015) with L2 weight decay on W1 and w2,
+ * Glorot uniform initialisation of W1 (Glorot & Bengio 2010), and early stopping on a held-out
+ * split: the parameters of the epoch with the best held-out loss are kept.
  */
 import type { Matrix } from '../linalg/matrix.js';
+import { lstsq } from '../linalg/lstsq.js';
 import type { Rng } from '../random/rng.js';
+import { logisticRegression } from '../stats/logistic-regression.js';
 import { tanhApprox } from './activation.js';
 import { sigmoid } from './predict.js';
 import type { ResolvedMechanismOptions } from './types.js';
 
 /** Result of `trainMlp`. */
 export interface MlpFit {
-  /** W1 (h × p), b1 (h), w2 (h), b2 (1). */
+  /** W1 (h × p), b1 (h), w2 (h), b2 (1), then the linear part L0, L1..Lp. */
   readonly params: Float64Array;
   readonly yCentre: number;
   readonly yScale: number;
   /** Best held-out loss: mean squared error in the units of y (continuous) or mean cross-entropy (binary). */
   readonly heldOutLoss: number;
   readonly epochs: number;
+}
+
+/** Number of parameters of an MLP mechanism with p inputs and h hidden units. */
+export function mlpParamCount(p: number, h: number): number {
+  return h * p + 2 * h + 1 + 1 + p;
 }
 
 const BETA1 = 0.9;
@@ -43,39 +56,58 @@ export function trainMlp(
   const p = x.cols;
   const h = opts.hidden;
   const xd = x.data;
-  const nPar = h * p + 2 * h + 1;
+  const nNet = h * p + 2 * h + 1;
+  const nPar = mlpParamCount(p, h);
   const oB1 = h * p;
   const oW2 = oB1 + h;
   const oB2 = oW2 + h;
+  const oLin = oB2 + 1;
+  const w = new Float64Array(nPar);
 
-  // Target scaling (continuous): standardise on the training rows.
+  // Linear part on the training rows, then the per-row base (prediction or logit).
+  const xt = new Float64Array(train.length * p);
+  const yt = new Float64Array(train.length);
+  for (let r = 0; r < train.length; r++) {
+    xt.set(xd.subarray(train[r] * p, train[r] * p + p), r * p);
+    yt[r] = y[train[r]];
+  }
+  const xm: Matrix = { rows: train.length, cols: p, data: xt };
+  if (binary) {
+    const fit = logisticRegression(xm, yt, { ridge: Math.max(opts.ridge, 1e-6) });
+    w[oLin] = fit.intercept;
+    w.set(fit.coef, oLin + 1);
+  } else {
+    const fit = lstsq(xm, yt, { ridge: opts.ridge, intercept: true });
+    w[oLin] = fit.intercept;
+    w.set(fit.coef, oLin + 1);
+  }
+  const base = new Float64Array(x.rows);
+  for (let i = 0; i < x.rows; i++) {
+    let s = w[oLin];
+    for (let j = 0; j < p; j++) s += w[oLin + 1 + j] * xd[i * p + j];
+    base[i] = s;
+  }
+
+  // Target scaling (continuous): standardise the linear residual on the training rows.
   let yCentre = 0;
   let yScale = 1;
   if (!binary) {
     let s = 0;
-    for (let r = 0; r < train.length; r++) s += y[train[r]];
+    for (let r = 0; r < train.length; r++) s += y[train[r]] - base[train[r]];
     yCentre = s / Math.max(1, train.length);
     let v = 0;
-    for (let r = 0; r < train.length; r++) v += (y[train[r]] - yCentre) ** 2;
+    for (let r = 0; r < train.length; r++) v += (y[train[r]] - base[train[r]] - yCentre) ** 2;
     yScale = Math.sqrt(v / Math.max(1, train.length - 1));
     if (!(yScale > 0)) yScale = 1;
   }
 
-  const w = new Float64Array(nPar);
   const a1 = Math.sqrt(6 / (p + h));
   for (let i = 0; i < h * p; i++) w[i] = (2 * rng.uniform() - 1) * a1;
-  const a2 = Math.sqrt(6 / (h + 1));
-  for (let u = 0; u < h; u++) w[oW2 + u] = (2 * rng.uniform() - 1) * a2;
-  if (binary) {
-    let s = 0;
-    for (let r = 0; r < train.length; r++) s += y[train[r]];
-    const pm = Math.min(1 - 1e-6, Math.max(1e-6, s / Math.max(1, train.length)));
-    w[oB2] = Math.log(pm / (1 - pm));
-  }
+  // b1 = 0, w2 = 0, b2 = 0: the network starts as the linear fit.
 
-  const g = new Float64Array(nPar);
-  const m1 = new Float64Array(nPar);
-  const m2 = new Float64Array(nPar);
+  const g = new Float64Array(nNet);
+  const m1 = new Float64Array(nNet);
+  const m2 = new Float64Array(nNet);
   const best = w.slice();
   const t = new Float64Array(h);
   const order = Int32Array.from(train);
@@ -94,10 +126,10 @@ export function trainMlp(
         s += w[oW2 + u] * tanhApprox(a);
       }
       if (binary) {
-        const pr = Math.min(1 - 1e-12, Math.max(1e-12, sigmoid(s)));
+        const pr = Math.min(1 - 1e-12, Math.max(1e-12, sigmoid(base[i] + s)));
         loss -= y[i] === 1 ? Math.log(pr) : Math.log(1 - pr);
       } else {
-        const e = (y[i] - yCentre) / yScale - s;
+        const e = (y[i] - base[i] - yCentre) / yScale - s;
         loss += e * e;
       }
     }
@@ -122,7 +154,7 @@ export function trainMlp(
           t[u] = tanhApprox(a);
           s += w[oW2 + u] * t[u];
         }
-        const ds = binary ? sigmoid(s) - y[i] : s - (y[i] - yCentre) / yScale;
+        const ds = binary ? sigmoid(base[i] + s) - y[i] : s - (y[i] - base[i] - yCentre) / yScale;
         g[oB2] += ds;
         for (let u = 0; u < h; u++) {
           g[oW2 + u] += ds * t[u];
@@ -135,7 +167,7 @@ export function trainMlp(
       step++;
       const c1 = 1 - Math.pow(BETA1, step);
       const c2 = 1 - Math.pow(BETA2, step);
-      for (let k = 0; k < nPar; k++) {
+      for (let k = 0; k < nNet; k++) {
         let gk = g[k] * inv;
         if (k < oB1 || (k >= oW2 && k < oB2)) gk += wd * w[k];
         m1[k] = BETA1 * m1[k] + (1 - BETA1) * gk;

@@ -54,14 +54,17 @@ export function predictMechanism(m: FittedMechanism, x: Matrix, out?: Float64Arr
     const b1 = h * p;
     const w2 = b1 + h;
     const b2 = w2 + h;
+    const lin = b2 + 1;
     for (let r = 0; r < n; r++) {
+      let l = w[lin];
+      for (let j = 0; j < p; j++) l += w[lin + 1 + j] * xd[r * p + j];
       let s = w[b2];
       for (let u = 0; u < h; u++) {
         let a = w[b1 + u];
         for (let j = 0; j < p; j++) a += w[u * p + j] * xd[r * p + j];
         s += w[w2 + u] * tanhApprox(a);
       }
-      o[r] = m.family === 'mlp' ? m.yCentre + m.yScale * s : sigmoid(s);
+      o[r] = m.family === 'mlp' ? l + (m.yCentre + m.yScale * s) : sigmoid(l + s);
     }
   }
   return o;

@@ -48,6 +48,8 @@ export interface PostedRows {
   readonly n: number;
   /** p × n node-major values (level codes for discrete variables); NaN where not given. */
   readonly values: Float64Array;
+  /** Per row: 1 if it leaves at least one variable out. */
+  readonly incomplete: Uint8Array;
 }
 
 /** Factual units of one graph: posted rows expanded into draws, with abducted or drawn noise. */
@@ -123,7 +125,9 @@ export function encodeRows(model: CompiledModel, rows: ReadonlyArray<Readonly<Re
       }
     }
   }
-  return { n, values };
+  const incomplete = new Uint8Array(n);
+  for (let j = 0; j < p; j++) for (let r = 0; r < n; r++) if (Number.isNaN(values[j * n + r])) incomplete[r] = 1;
+  return { n, values, incomplete };
 }
 
 /**
@@ -140,7 +144,7 @@ export function processMask(model: CompiledModel, g: number, posted: PostedRows,
     const pc = model.mechTable[m * MECH_STRIDE + MECH_PARENT_COUNT];
     let evidence = false;
     for (let r = 0; r < n && !evidence; r++) {
-      if (Number.isNaN(posted.values[j * n + r])) continue;
+      if (posted.incomplete[r] === 0 || Number.isNaN(posted.values[j * n + r])) continue;
       for (let a = 0; a < pc; a++) if (Number.isNaN(posted.values[model.mechParents[pa + a] * n + r])) evidence = true;
     }
     if (evidence) all.push(j);
@@ -189,10 +193,13 @@ export function abductRows(
     for (let r = 0; r < nr && !anyMissing; r++) anyMissing = Number.isNaN(pv[j * nr + r]);
     if (anyMissing) {
       drawNoise(model, j, m, posted, rowStart, rng.stream(j), noise, col);
-      applyNoise(model, j, mean, noise, col, N, tmp, 0);
+      const continuous = model.kinds[j] === KIND_CONTINUOUS;
+      if (!continuous) applyNoise(model, j, mean, noise, col, N, tmp, 0);
       for (let r = 0; r < nr; r++) {
         if (!Number.isNaN(pv[j * nr + r])) continue;
-        for (let u = rowStart[r]; u < rowStart[r + 1]; u++) values[col + u] = tmp[u];
+        const end = rowStart[r + 1];
+        if (continuous) for (let u = rowStart[r]; u < end; u++) values[col + u] = mean[u] + noise[col + u];
+        else for (let u = rowStart[r]; u < end; u++) values[col + u] = tmp[u];
       }
     }
     addLikelihood(model, j, m, posted, rowStart, values, mean, N, logWeight);
@@ -240,7 +247,7 @@ function addLikelihood(
   const sigma = model.mechScalars[m * SCALAR_STRIDE + SCALAR_SIGMA];
   const col = j * N;
   for (let r = 0; r < nr; r++) {
-    if (Number.isNaN(pv[j * nr + r])) continue;
+    if (posted.incomplete[r] === 0 || Number.isNaN(pv[j * nr + r])) continue;
     let drawnParent = false;
     for (let a = 0; a < pc && !drawnParent; a++) drawnParent = Number.isNaN(pv[model.mechParents[pa + a] * nr + r]);
     if (!drawnParent) continue;

@@ -50,11 +50,13 @@ export const NOISE_UNIFORM = 2;
  *  - linear / logistic: [b, w_1..w_nIn]                       (1 + nIn values)
  *  - softmax:           k rows of [b_c, w_c1..w_cnIn]          (k(1 + nIn))
  *  - mlp / mlp-bernoulli (one hidden layer, activation mechanisms/activation.ts, one output):
- *       W1 (h × nIn, row-major), b1 (h), w2 (h), b2 (1)      (h·nIn + 2h + 1)
+ *       W1 (h × nIn, row-major), b1 (h), w2 (h), b2 (1), then a linear skip part
+ *       L0, L1..L_nIn                                         (h·nIn + 2h + 2 + nIn)
+ *       output: mlp lin + (yCentre + yScale·net), mlp-bernoulli sigmoid(lin + net)
  * Encoded inputs (ENCODING_ADDITIVE): parents in ascending index order; a continuous parent contributes one input
  * (x − centre)/scale, a binary parent one input (0/1), a categorical parent with k levels
  * k−1 indicator inputs for levels 1..k−1 (level 0 is the reference).
- * Continuous outputs are yCentre + yScale · (network or linear output); binary outputs are
+ * Continuous outputs are yCentre + yScale · (linear output), or as above for the MLP; binary outputs are
  * P(x = 1) = sigmoid(output); categorical outputs softmax over the k rows.
  */
 export const MECH_FAMILY = 0;

@@ -167,14 +167,23 @@ export function mechanismOutput(model: CompiledModel, m: number, values: Float64
     }
     return;
   }
-  // MLP families: W1 (h × nIn), b1 (h), w2 (h), b2. The encoded inputs are written once into
-  // scratch rows h..h+nIn−1, then each hidden unit is a weighted sum of those columns.
+  // MLP families: W1 (h × nIn), b1 (h), w2 (h), b2, then the linear part L0, L1..L_nIn.
+  // The encoded inputs are written once into scratch rows h..h+nIn−1 and the linear part into
+  // row h+nIn; each hidden unit is a weighted sum of the input columns.
   const h = t[row + MECH_HIDDEN];
   const b1 = po + h * nIn;
   const w2 = b1 + h;
   const b2 = w2 + h;
+  const lin = b2 + 1;
   const zOff = h * n;
+  const lOff = (h + nIn) * n;
   encodeColumns(model, m, values, n, scratch, zOff);
+  scratch.fill(P[lin], lOff, lOff + n);
+  for (let k = 0; k < nIn; k++) {
+    const w = P[lin + 1 + k];
+    const zk = zOff + k * n;
+    for (let i = 0; i < n; i++) scratch[lOff + i] += w * scratch[zk + i];
+  }
   for (let u = 0; u < h; u++) {
     const off = u * n;
     scratch.fill(P[b1 + u], off, off + n);
@@ -190,8 +199,8 @@ export function mechanismOutput(model: CompiledModel, m: number, values: Float64
     const off = u * n;
     for (let i = 0; i < n; i++) out[i] += wu * tanhApprox(scratch[off + i]);
   }
-  if (fam === FAMILY_MLP) for (let i = 0; i < n; i++) out[i] = yC + yS * out[i];
-  else for (let i = 0; i < n; i++) out[i] = sigmoid(out[i]);
+  if (fam === FAMILY_MLP) for (let i = 0; i < n; i++) out[i] = scratch[lOff + i] + (yC + yS * out[i]);
+  else for (let i = 0; i < n; i++) out[i] = sigmoid(scratch[lOff + i] + out[i]);
 }
 
 /**
@@ -230,8 +239,8 @@ export function applyNoise(
 }
 
 /**
- * Per-unit sizes of the kernel buffers: `hidden` rows of scratch (MLP hidden units plus their
- * encoded inputs) and `outputs` rows of output; allocate hidden·n and outputs·n values.
+ * Per-unit sizes of the kernel buffers: `hidden` rows of scratch (MLP hidden units, their
+ * encoded inputs and the linear part) and `outputs` rows of output; allocate hidden·n and outputs·n values.
  */
 export function kernelWidths(model: CompiledModel): { hidden: number; outputs: number } {
   let hidden = 1;
@@ -239,7 +248,7 @@ export function kernelWidths(model: CompiledModel): { hidden: number; outputs: n
   for (let m = 0; m < model.nMechanisms; m++) {
     const row = m * MECH_STRIDE;
     const h = model.mechTable[row + MECH_HIDDEN];
-    if (h > 0 && h + model.mechTable[row + MECH_N_IN] > hidden) hidden = h + model.mechTable[row + MECH_N_IN];
+    if (h > 0 && h + model.mechTable[row + MECH_N_IN] + 1 > hidden) hidden = h + model.mechTable[row + MECH_N_IN] + 1;
     if (model.mechTable[row + MECH_N_OUT] > outputs) outputs = model.mechTable[row + MECH_N_OUT];
   }
   return { hidden, outputs };
