@@ -24,6 +24,8 @@ export interface OrientationReport {
   vetoed: number;
   /** Colliders skipped because they would close a directed cycle with stronger ones. */
   cyclic: number;
+  /** Edges left undirected because Meek's rules put them on a directed cycle (test errors). */
+  unoriented: number;
 }
 
 /**
@@ -48,7 +50,7 @@ export function orientVStructures(
   const n = skel.n;
   const adj = skel.adj;
   const propose = new Uint8Array(n * n);
-  const report: OrientationReport = { colliders: 0, ambiguous: 0, conflicts: 0, vetoed: 0, cyclic: 0 };
+  const report: OrientationReport = { colliders: 0, ambiguous: 0, conflicts: 0, vetoed: 0, cyclic: 0, unoriented: 0 };
   const found: Collider[] = [];
   for (let k = 0; k < n; k++) {
     for (let i = 0; i < n; i++) {
@@ -81,21 +83,22 @@ export function orientVStructures(
 
 /**
  * Adds the colliders to `pdag` strongest first, skipping one whose arms would close a
- * directed cycle with those already added, then closes under `close` (Meek's rules and the
- * knowledge) once. Meek's rules assume a consistent pattern; if test errors make the
- * closure cyclic, the weakest colliders are dropped one at a time until it is not. Skipped
- * and dropped colliders are counted in `report.cyclic`. Returns the closed marks.
+ * directed cycle with those already added (counted in `report.cyclic`), then closes under
+ * `close` (Meek's rules and the knowledge). Meek's rules assume a consistent pattern; when
+ * test errors make the closure cyclic anyway, every edge on a directed cycle is made
+ * undirected again, except orientations the knowledge forces (`forced[i*n+j]` = 1 keeps
+ * i→j); those edges are counted in `report.unoriented`. Returns the marks.
  */
 export function applyColliders(
   pdag: Uint8Array,
   n: number,
   colliders: readonly (readonly number[])[],
   close: (marks: Uint8Array) => Uint8Array,
+  forced: Uint8Array,
   report: OrientationReport,
 ): Uint8Array {
   const stack: number[] = [];
   const seen = new Uint8Array(n);
-  const kept: (readonly number[])[] = [];
   const marks = pdag.slice();
   for (const arms of colliders) {
     let cyclic = false;
@@ -106,30 +109,17 @@ export function applyColliders(
       continue;
     }
     for (let t = 0; t < arms.length; t += 2) marks[arms[t + 1] * n + arms[t]] = 0;
-    kept.push(arms);
   }
-  let closed = close(marks);
+  const closed = close(marks);
   if (!reachesAnyCycle(closed, n)) return closed;
-  // Drop the weakest colliders until the closure is acyclic, then try to add each dropped one
-  // back, strongest first, keeping it when the closure stays acyclic.
-  const build = (set: readonly (readonly number[])[]): Uint8Array => {
-    const trial = pdag.slice();
-    for (const arms of set) for (let t = 0; t < arms.length; t += 2) trial[arms[t + 1] * n + arms[t]] = 0;
-    return close(trial);
-  };
-  const dropped: (readonly number[])[] = [];
-  while (kept.length > 0 && reachesAnyCycle(closed, n)) {
-    dropped.unshift(kept.pop() as readonly number[]);
-    closed = build(kept);
-  }
-  for (const arms of dropped) {
-    const next = build([...kept, arms]);
-    if (reachesAnyCycle(next, n)) report.cyclic++;
-    else {
-      kept.push(arms);
-      closed = next;
+  const onCycle: number[] = [];
+  for (let u = 0; u < n; u++) {
+    for (let v = 0; v < n; v++) {
+      if (closed[u * n + v] === 1 && closed[v * n + u] === 0 && forced[u * n + v] === 0 && reaches(closed, n, v, u, stack, seen)) onCycle.push(u, v);
     }
   }
+  for (let t = 0; t < onCycle.length; t += 2) closed[onCycle[t + 1] * n + onCycle[t]] = 1;
+  report.unoriented += onCycle.length / 2;
   return closed;
 }
 

@@ -96,12 +96,19 @@ export function pcWithTest(
   const pdag = skel.adj.slice();
   imposeKnowledge(pdag, n, knowledge);
   const { report: rep, colliders } = orientVStructures(skel, pdag, test, knowledge, o.alpha, o.maxCondSize, o.vStructureRule);
-  const adj = applyColliders(pdag, n, colliders, (marks) => closeUnderMeek(marks, names, knowledge), rep);
+  const forced = new Uint8Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      if (i !== j && (knowledge.required[i * n + j] === 1 || (knowledge.forbidden[j * n + i] === 1 && knowledge.forbidden[i * n + j] === 0))) forced[i * n + j] = 1;
+    }
+  }
+  const adj = applyColliders(pdag, n, colliders, (marks) => closeUnderMeek(marks, names, knowledge), forced, rep);
   const notes = [
     `conditioning sets up to size ${skel.maxLevel < 0 ? 0 : skel.maxLevel}`,
     `v-structures (${o.vStructureRule} rule): ${rep.colliders} colliders, ${rep.ambiguous} ambiguous triples, ` +
       `${rep.conflicts} conflicting edges left undirected, ${rep.vetoed} orientations refused by the knowledge, ` +
-      `${rep.cyclic} colliders skipped as they would close a directed cycle`,
+      `${rep.cyclic} colliders skipped as they would close a directed cycle, ` +
+      `${rep.unoriented} edges left undirected as Meek's rules put them on a directed cycle`,
   ];
   return { adj, notes };
 }
