@@ -79,6 +79,11 @@ export const DATA_ERRORS = {
     title: 'Undeclared level',
     template: 'Row {row}, column "{column}": the value is not one of the declared levels {levels}.',
   },
+  ERR_DATA_NUL_CHARACTER: {
+    status: 400,
+    title: 'NUL character',
+    template: '{where} holds a NUL character (code 0), which cannot be stored; remove it.',
+  },
   ERR_DATA_BAD_CELL: {
     status: 400,
     title: 'Bad cell',
@@ -97,7 +102,7 @@ export const DATA_ERRORS = {
   ERR_DATA_BAD_NAME: {
     status: 400,
     title: 'Bad dataset name',
-    template: 'A dataset name must have 1 to {limit} characters.',
+    template: 'A dataset name must have 1 to {limit} characters (no NUL character).',
   },
   ERR_DATA_UNKNOWN_DATASET: {
     status: 404,

@@ -163,6 +163,17 @@ describe.each(backendNames())('datasets on %s', (backend) => {
     expect(Array.from(f.frame.columns[2].values)).toEqual([1, 2, NaN]);
   });
 
+  it('stores numbers that JavaScript reads but PostgreSQL would refuse as written (underflow, no-break space)', async () => {
+    const r = await svc.createFromJson({
+      workspaceId: ws,
+      name: 'edge numbers',
+      table: { columns: ['v'], rows: [['1e-400'], ['\u00a05'], ['-0.0'], ['.5e1'], ['+3.'], [2.5e-310]] },
+    });
+    const f = await svc.loadFrame({ workspaceId: ws, datasetId: r.dataset.id });
+    expect(Array.from(f.frame.columns[0].values)).toEqual([0, 5, 0, 5, 3, 2.5e-310]);
+    await svc.remove(ws, r.dataset.id);
+  });
+
   it('keeps every workspace blind to the datasets of others', async () => {
     const d = (await svc.list(ws)).find((x) => x.name === 'households') as { id: string };
     expect(await svc.list(other)).toEqual([]);
@@ -234,6 +245,8 @@ describe.each(backendNames())('datasets on %s', (backend) => {
       expect(await json([[1, 'text']], { b: 'continuous' })).toBe('ERR_DATA_NOT_A_NUMBER');
       expect(await json([[1, 2]], { nope: 'continuous' })).toBe('ERR_DATA_BAD_SCHEMA');
       expect(await json([[1, 2, 3]])).toBe('ERR_DATA_RAGGED_ROW');
+      expect(await json([[1, 'a'], [2, 'b\u0000c']])).toBe('ERR_DATA_NUL_CHARACTER');
+      expect(await codeOf(svc.createFromJson({ workspaceId: ws, name: 'n', table: { columns: ['a', 'b\u0000'], rows: [[1, 2]] } }))).toBe('ERR_DATA_NUL_CHARACTER');
       expect(await codeOf(svc.createFromJson({ workspaceId: ws, name: '', table: { columns: ['a'], rows: [[1]] } }))).toBe('ERR_DATA_BAD_NAME');
       expect(await snapshot(t.db)).toEqual(before);
     });

@@ -28,9 +28,10 @@ export interface CreateDatasetInput {
 
 export const MAX_DATASET_NAME = 200;
 
+/** The trimmed dataset name, or ERR_DATA_BAD_NAME. */
 export function checkName(name: string): string {
   const n = typeof name === 'string' ? name.trim() : '';
-  if (n.length === 0 || n.length > MAX_DATASET_NAME) throw dataError('ERR_DATA_BAD_NAME', { limit: MAX_DATASET_NAME });
+  if (n.length === 0 || n.length > MAX_DATASET_NAME || n.includes('\u0000')) throw dataError('ERR_DATA_BAD_NAME', { limit: MAX_DATASET_NAME });
   return n;
 }
 

@@ -20,6 +20,7 @@ export function checkHeader(header: readonly string[], limits: IngestLimits): st
   for (let j = 0; j < names.length; j++) {
     const name = names[j];
     if (name.length === 0) throw dataError('ERR_DATA_EMPTY_COLUMN_NAME', { position: j + 1 });
+    if (name.includes('\u0000')) throw dataError('ERR_DATA_NUL_CHARACTER', { where: `The name of column ${j + 1}`, position: j + 1 });
     if (name.length > limits.maxColumnNameLength) {
       throw dataError('ERR_DATA_COLUMN_NAME_TOO_LONG', { position: j + 1, length: name.length, limit: limits.maxColumnNameLength });
     }
@@ -48,6 +49,7 @@ function normaliseDeclarations(names: readonly string[], declared: SchemaDeclara
       if (d.kind === 'continuous') throw bad('a continuous column has no levels');
       const levels = d.levels.map((l) => trimCell(String(l)));
       if (levels.some(isMissing)) throw bad('a level may not be empty or NA');
+      if (levels.some((l) => l.includes('\u0000'))) throw bad('a level may not hold a NUL character');
       if (new Set(levels).size !== levels.length) throw bad('levels must be distinct');
       if (d.kind === 'binary' && levels.length !== 2) throw bad('a binary column has exactly two levels');
       if (levels.length > limits.maxLevels) throw bad(`at most ${limits.maxLevels} levels are allowed`);
@@ -67,7 +69,7 @@ interface Scan {
   tooManyRow: number;
 }
 
-function scanColumn(sample: readonly string[][], j: number, maxLevels: number): Scan {
+function scanColumn(sample: readonly string[][], j: number, name: string, maxLevels: number): Scan {
   const status = new Int32Array(1);
   const scan: Scan = { values: 0, numbers: 0, integers: true, nonFiniteRow: 0, distinct: new Set(), tooMany: false, tooManyRow: 0 };
   for (let r = 0; r < sample.length; r++) {
@@ -80,6 +82,7 @@ function scanColumn(sample: readonly string[][], j: number, maxLevels: number): 
       if (!Number.isInteger(v)) scan.integers = false;
     } else if (status[0] === NOT_FINITE && scan.nonFiniteRow === 0) scan.nonFiniteRow = r + 1;
     if (!scan.tooMany && !scan.distinct.has(s)) {
+      if (s.includes('\u0000')) throw dataError('ERR_DATA_NUL_CHARACTER', { where: `Row ${r + 1}, column "${name}"`, row: r + 1, column: name });
       if (scan.distinct.size >= maxLevels) {
         scan.tooMany = true;
         scan.tooManyRow = r + 1;
@@ -110,7 +113,7 @@ export function resolveColumns(
   return names.map((name, j) => {
     const sqlColumn = `c${j + 1}`;
     const d = decl.get(name);
-    const scan = scanColumn(sample, j, limits.maxLevels);
+    const scan = scanColumn(sample, j, name, limits.maxLevels);
     if (d) {
       let levels = d.levels ? [...d.levels] : undefined;
       if (!levels && d.kind === 'binary') {

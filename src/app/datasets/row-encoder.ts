@@ -13,6 +13,18 @@ interface LevelEntry {
   csv: string;
 }
 
+/**
+ * True when PostgreSQL's float8 input reads `s` as JavaScript read it (`v`). Not so for an
+ * underflow to zero ("1e-400": PostgreSQL refuses it) or for white space JavaScript skips and
+ * PostgreSQL does not (no-break space); those cells are written as `String(v)` instead.
+ */
+function pgReadsAsIs(s: string, v: number): boolean {
+  if (v === 0) return s.length === 1;
+  const a = s.charCodeAt(0);
+  const b = s.charCodeAt(s.length - 1);
+  return (a === 43 || a === 45 || a === 46 || (a >= 48 && a <= 57)) && (b === 46 || (b >= 48 && b <= 57));
+}
+
 /** Per-column running state; one object per column, touched once per cell. */
 interface ColumnState {
   kind: number;
@@ -113,7 +125,7 @@ export class RowEncoder {
           c.m2 += d * (v - c.mean);
           if (v < c.min) c.min = v;
           if (v > c.max) c.max = v;
-          line += ',' + s;
+          line += ',' + (pgReadsAsIs(s, v) ? s : String(v));
         } else {
           let e = c.entries.get(s);
           if (e === undefined) e = this.newLevel(c, s, row);
@@ -145,6 +157,7 @@ export class RowEncoder {
       return e;
     }
     if (c.schema.levelsDeclared) throw dataError('ERR_DATA_UNKNOWN_LEVEL', { row, column: name, levels: JSON.stringify(c.levels) });
+    if (s.includes('\u0000')) throw dataError('ERR_DATA_NUL_CHARACTER', { where: `Row ${row}, column "${name}"`, row, column: name });
     if (c.levels.length >= this.limits.maxLevels) throw dataError('ERR_DATA_TOO_MANY_LEVELS', { column: name, limit: this.limits.maxLevels, row });
     const e = { count: 0, csv: csvQuote(s) };
     c.levels.push(s);
