@@ -88,6 +88,7 @@ export function createBullmqQueue(options: BullmqQueueOptions): QueuePort {
         name: job.name,
         data: envelope ? envelope.payload : job.data,
         attempt: job.attemptsMade + 1,
+        maxAttempts: job.opts.attempts ?? 1,
         signal: controller.signal,
         progress: async (p) => {
           await job.updateProgress(p as unknown as object);

@@ -100,6 +100,7 @@ export function createInProcessQueue(options: InProcessQueueOptions = {}): Queue
         name: entry.spec.name,
         data: entry.spec.data,
         attempt: entry.attemptsMade,
+        maxAttempts: entry.spec.opts.attempts ?? 3,
         signal,
         progress: async (p) => {
           entry.progress = p;
@@ -141,13 +142,16 @@ export function createInProcessQueue(options: InProcessQueueOptions = {}): Queue
 
   const queue: QueuePort = {
     kind: 'in-process',
+    // Adding an id that exists is a no-op, as on BullMQ: a retried job may enqueue again.
     async add(spec) {
+      if (jobs.has(spec.opts.jobId)) return spec.opts.jobId;
       register(spec);
       ready.push(spec.opts.jobId);
       pump();
       return spec.opts.jobId;
     },
     async addFlow(parentSpec, children) {
+      if (jobs.has(parentSpec.opts.jobId)) return parentSpec.opts.jobId;
       const parent = register(parentSpec);
       for (const c of children) {
         register(c, parentSpec.opts.jobId);

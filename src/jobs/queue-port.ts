@@ -38,6 +38,8 @@ export interface JobRun<D = unknown> {
   readonly data: D;
   /** 1 on the first try. */
   readonly attempt: number;
+  /** Tries in all; `attempt === maxAttempts` is the last one. */
+  readonly maxAttempts: number;
   /** Aborted when the job is cancelled or the worker shuts down. */
   readonly signal: AbortSignal;
   progress(p: JobProgress): Promise<void>;

@@ -76,6 +76,14 @@ const toJob = (r: RawJob): JobRow => ({
 
 const FINAL = "('succeeded', 'failed', 'cancelled')";
 
+/** A write refused because the job was cancelled meanwhile. */
+export class CancelledJobError extends Error {
+  constructor(readonly jobId: string) {
+    super(`job ${jobId} was cancelled`);
+    this.name = 'CancelledJobError';
+  }
+}
+
 export function createJobsRepository(db: Db) {
   return {
     async insert(j: { id: string; workspaceId: string; modelId: string; trigger: JobTrigger; replicatesTotal: number }, tx: Db = db): Promise<void> {
@@ -166,6 +174,11 @@ export function createJobsRepository(db: Db) {
 
     async markCancelled(id: string, tx: Db = db): Promise<void> {
       await tx.query(`UPDATE jobs SET state = 'cancelled', finished_at = now() WHERE id = $1 AND state NOT IN ${FINAL}`, [id]);
+    },
+
+    /** Remove a job record that never reached the queue. */
+    async remove(id: string, tx: Db = db): Promise<void> {
+      await tx.query(`DELETE FROM jobs WHERE id = $1 AND state = 'queued'`, [id]);
     },
 
     /** Jobs left queued or running (an embedded process that restarted re-enqueues them). */

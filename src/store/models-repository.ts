@@ -3,6 +3,7 @@
  * is simply not found.
  */
 import type { Db } from './db.js';
+import { CancelledJobError } from './jobs-repository.js';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const iso = (v: unknown): string => (v instanceof Date ? v.toISOString() : new Date(String(v)).toISOString());
@@ -139,6 +140,8 @@ export function createModelsRepository(db: Db) {
         if (locked.rows.length === 0) throw new RangeError(`model ${v.modelId} no longer exists`);
         const existing = await tx.query<{ id: string; number: number }>('SELECT id, number FROM model_versions WHERE job_id = $1', [v.jobId]);
         if (existing.rows[0]) return { ...existing.rows[0], created: false };
+        const job = await tx.query<{ state: string; cancel_requested: boolean }>('SELECT state, cancel_requested FROM jobs WHERE id = $1 FOR UPDATE', [v.jobId]);
+        if (job.rows[0] && (job.rows[0].state === 'cancelled' || job.rows[0].cancel_requested)) throw new CancelledJobError(v.jobId);
         const next = await tx.query<{ n: number }>('SELECT COALESCE(MAX(number), 0) + 1 AS n FROM model_versions WHERE model_id = $1', [v.modelId]);
         const number = Number(next.rows[0].n);
         await tx.query(
@@ -160,6 +163,10 @@ export function createModelsRepository(db: Db) {
           ],
         );
         await tx.query('UPDATE models SET current_version_id = $2, updated_at = now() WHERE id = $1', [v.modelId, v.id]);
+        await tx.query(
+          `UPDATE jobs SET state = 'succeeded', stage = 'done', percent = 100, version_id = $2, finished_at = now(), error = NULL WHERE id = $1`,
+          [v.jobId, v.id],
+        );
         return { id: v.id, number, created: true };
       });
     },
