@@ -165,7 +165,6 @@ export function whatIf(
   const A = arms.length;
   const pv = posted.values;
 
-  const T0 = performance.now();
   // ---- plan: nodes per graph, draws per row and graph, pooled layout ----
   const reads: number[] = [];
   for (const a of arms) for (const v of a.reads) reads.push(v);
@@ -193,7 +192,7 @@ export function whatIf(
     const Dg = Math.max(Math.min(D, MIN_GRAPH_DRAWS), Math.round(D * model.graphWeights[g]));
     for (let r = 0; r < n; r++) {
       let need = discreteRecomputed;
-      for (let j = 0; j < p && !need; j++) need = proc[j] === 1 && Number.isNaN(pv[j * n + r]);
+      for (let j = 0; j < p && !need && posted.incomplete[r] === 1; j++) need = proc[j] === 1 && Number.isNaN(pv[j * n + r]);
       drawsOf[g * n + r] = need ? Dg : 1;
     }
   }
@@ -217,7 +216,6 @@ export function whatIf(
   }
   const pool = poolStart[n];
 
-  const T1 = performance.now();
   // ---- simulate: per graph, abduct once, then every arm on the same units ----
   const outcome = new Float64Array(A * pool);
   const weight = new Float64Array(pool);
@@ -287,7 +285,6 @@ export function whatIf(
     }
   }
 
-  const T2 = performance.now();
   // ---- summaries per row ----
   const labels = arms.map((a) => a.label);
   const keys = new Float64Array(maxBlock);
@@ -331,7 +328,6 @@ export function whatIf(
     units.push({ row: r, used, missing, ignored, draws: len, effectiveDraws: e, predictions, effects });
   }
 
-  const T3 = performance.now(); (globalThis as any).__wi = [(globalThis as any).__wi?.[0] + T1 - T0 || T1-T0, (globalThis as any).__wi?.[1] + T2 - T1 || T2-T1, (globalThis as any).__wi?.[2] + T3 - T2 || T3-T2];
   const pathP = pathProbability(model, t, y);
   const cautions = queryCautions(q.treatment, q.outcome, pathP, 0, [], true);
   cautions.push(
@@ -482,7 +478,10 @@ function summarise(vals: Float64Array, vOff: number, w: Float64Array, wOff: numb
   }
   const estimate = s / sw;
   // All draws equal up to rounding (a determined answer): a point, without rounding noise in the bounds.
-  if (max - min <= 1e-12 * Math.max(1, Math.abs(estimate))) return { estimate, lower: estimate, upper: estimate };
+  if (max - min <= 1e-12 * Math.max(1, Math.abs(estimate))) {
+    const e = Math.min(max, Math.max(min, estimate));
+    return { estimate: e, lower: e, upper: e };
+  }
   sortPairs(keys, kw, 0, len - 1);
   const alpha = (1 - level) / 2;
   return { estimate, lower: weightedQuantile(keys, kw, len, alpha * sw), upper: weightedQuantile(keys, kw, len, (1 - alpha) * sw) };
