@@ -87,11 +87,10 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
     await app.register(rateLimit, {
       max: config.FULCRUM_RATE_LIMIT_MAX,
       timeWindow: config.FULCRUM_RATE_LIMIT_WINDOW_MS,
-      // One budget per key (its public prefix), else per client address.
-      keyGenerator: (request) => {
-        const m = /^Bearer\s+fk_([A-Za-z0-9]+)_/i.exec(String(request.headers.authorization ?? ''));
-        return m ? `key:${m[1]}` : `ip:${request.ip}`;
-      },
+      // Counted after authentication, so a budget belongs to a real key (invented keys get 401
+      // first and cannot open fresh budgets); unauthenticated routes count per client address.
+      hook: 'preHandler',
+      keyGenerator: (request) => (request.principal ? `key:${request.principal.keyId}` : `ip:${request.ip}`),
       errorResponseBuilder: (_request, context) =>
         apiError('ERR_REQUEST_RATE_LIMITED', {
           max: context.max,
