@@ -66,6 +66,8 @@ interface Record {
   adj_f1: number;
   orient_f1: number;
   seconds: number;
+  /** CPU seconds (user + system) of the run: what the learner cost, whatever the machine's load. */
+  cpu_seconds: number;
   seeds: number;
   edges?: number;
   /** For 'auto': the learner it chose on each seed. */
@@ -85,8 +87,15 @@ function edgeCount(g: Graph): number {
   return e;
 }
 
-function runOne(learner: string, frame: Frame, seed: number): { graph: Graph; seconds: number; chose?: string } {
+/** CPU seconds of this process (all threads): a load-robust companion to wall-clock seconds. */
+function cpuSeconds(): number {
+  const u = process.cpuUsage();
+  return (u.user + u.system) / 1e6;
+}
+
+function runOne(learner: string, frame: Frame, seed: number): { graph: Graph; seconds: number; cpu: number; chose?: string } {
   const t0 = performance.now();
+  const c0 = cpuSeconds();
   let graph: Graph;
   let chose: string | undefined;
   if (learner === 'r2-sort-regress') graph = r2SortRegress(frame);
@@ -96,13 +105,14 @@ function runOne(learner: string, frame: Frame, seed: number): { graph: Graph; se
     graph = res.graph;
     if (learner === 'auto') chose = res.learner;
   }
-  return { graph, seconds: (performance.now() - t0) / 1000, chose };
+  return { graph, seconds: (performance.now() - t0) / 1000, cpu: cpuSeconds() - c0, chose };
 }
 
 const records: Record[] = [];
 const log = (s: string) => process.stderr.write(s + '\n');
 const load = () => execSync('uptime').toString().trim();
-log(`start: ${load()}`);
+const loadBefore = load();
+log(`start: ${loadBefore}`);
 
 for (const cfg of configs) {
   if (only && !only.includes(cfg.id)) continue;
@@ -113,11 +123,13 @@ for (const cfg of configs) {
     const adj: number[] = [];
     const ori: number[] = [];
     const sec: number[] = [];
+    const cpu: number[] = [];
     let error: string | undefined;
     const chose: string[] = [];
     for (let k = 0; k < seeds.length; k++) {
       try {
-        const { graph, seconds, chose: c } = runOne(learner, data[k].frame, seeds[k]);
+        const { graph, seconds, cpu: cs, chose: c } = runOne(learner, data[k].frame, seeds[k]);
+        cpu.push(cs);
         if (c) chose.push(c);
         const sc = edgeScores(graph, data[k].graph);
         shd.push(sc.shd);
@@ -130,8 +142,8 @@ for (const cfg of configs) {
       }
     }
     const rec: Record = error
-      ? { config: cfg.id, learner, shd: NaN, adj_f1: NaN, orient_f1: NaN, seconds: NaN, seeds: 0, error }
-      : { config: cfg.id, learner, shd: median(shd), adj_f1: median(adj), orient_f1: median(ori), seconds: median(sec), seeds: seeds.length };
+      ? { config: cfg.id, learner, shd: NaN, adj_f1: NaN, orient_f1: NaN, seconds: NaN, cpu_seconds: NaN, seeds: 0, error }
+      : { config: cfg.id, learner, shd: median(shd), adj_f1: median(adj), orient_f1: median(ori), seconds: median(sec), cpu_seconds: median(cpu), seeds: seeds.length };
     if (chose.length) rec.chose = chose;
     records.push(rec);
     log(`${cfg.id} ${learner}: ${JSON.stringify(rec)}`);
@@ -160,15 +172,15 @@ if (!only || only.includes('sachs')) {
   const learners = [...['pc', 'direct-lingam', 'linear-notears', 'mlp-notears'].filter((l) => available.has(l as 'pc')), 'auto', 'r2-sort-regress', 'empty'];
   for (const learner of learners) {
     try {
-      const { graph, seconds, chose } = runOne(learner, frame, 1);
+      const { graph, seconds, cpu, chose } = runOne(learner, frame, 1);
       const sc = edgeScores(graph, truth);
-      const rec: Record = { config: 'sachs', learner, shd: sc.shd, adj_f1: sc.adjF1, orient_f1: sc.orientF1, seconds, seeds: 1, edges: edgeCount(graph) };
+      const rec: Record = { config: 'sachs', learner, shd: sc.shd, adj_f1: sc.adjF1, orient_f1: sc.orientF1, seconds, cpu_seconds: cpu, seeds: 1, edges: edgeCount(graph) };
       if (chose) rec.chose = [chose];
       records.push(rec);
       sachs[learner] = { shd: sc.shd, edges: rec.edges as number };
       log(`sachs ${learner}: ${JSON.stringify(rec)}`);
     } catch (e) {
-      records.push({ config: 'sachs', learner, shd: NaN, adj_f1: NaN, orient_f1: NaN, seconds: NaN, seeds: 0, error: (e as Error).message });
+      records.push({ config: 'sachs', learner, shd: NaN, adj_f1: NaN, orient_f1: NaN, seconds: NaN, cpu_seconds: NaN, seeds: 0, error: (e as Error).message });
     }
   }
 }
@@ -187,6 +199,8 @@ interface Speed {
   run: string;
   learner: string;
   seconds: number;
+  /** CPU seconds of the process, all threads together. */
+  cpu_seconds: number;
   limit: number;
   note?: string;
 }
@@ -195,49 +209,91 @@ const nonlinear = available.has('mlp-notears') ? 'mlp-notears' : null;
 if (!only || only.includes('speed')) {
   if (nonlinear) {
     const ds = generateDataset(configs[0].data, 77);
-    const { seconds } = runOne(nonlinear, ds.frame, 1);
-    speed.push({ run: 'one nonlinear replicate, d=20, n=2000', learner: nonlinear, seconds, limit: 60 });
+    const { seconds, cpu } = runOne(nonlinear, ds.frame, 1);
+    speed.push({ run: 'one nonlinear replicate, d=20, n=2000', learner: nonlinear, seconds, cpu_seconds: cpu, limit: 60 });
     log(JSON.stringify(speed[speed.length - 1]));
   }
   if (available.has('linear-notears')) {
     const ds = generateDataset({ graph: 'er', nodes: 100, expectedEdges: 200, rows: 5000, mechanism: 'linear', noise: 'gaussian' }, 78);
-    const { graph, seconds } = runOne('linear-notears', ds.frame, 1);
+    const { graph, seconds, cpu } = runOne('linear-notears', ds.frame, 1);
     const sc = edgeScores(graph, ds.graph);
-    speed.push({ run: 'linear learner, ER d=100 (200 edges), n=5000', learner: 'linear-notears', seconds, limit: 60, note: `shd ${sc.shd}` });
+    speed.push({ run: 'linear learner, ER d=100 (200 edges), n=5000', learner: 'linear-notears', seconds, cpu_seconds: cpu, limit: 60, note: `shd ${sc.shd}` });
     log(JSON.stringify(speed[speed.length - 1]));
   }
   if (nonlinear && !quick) {
     const ds = generateDataset(configs[0].data, 79);
     const t0 = performance.now();
+    const c0 = cpuSeconds();
     const set = await runBootstrap(ds.frame, {}, { learner: nonlinear as 'mlp-notears' }, { replicates: 20, seed: 1, threads: 2 });
     const seconds = (performance.now() - t0) / 1000;
-    speed.push({ run: '20-replicate nonlinear ensemble, d=20, n=2000, 2 threads', learner: nonlinear, seconds, limit: 600, note: `${set.graphs.length} distinct DAGs` });
+    speed.push({ run: '20-replicate nonlinear ensemble, d=20, n=2000, 2 threads', learner: nonlinear, seconds, cpu_seconds: cpuSeconds() - c0, limit: 600, note: `${set.graphs.length} distinct DAGs` });
     log(JSON.stringify(speed[speed.length - 1]));
   }
 }
 const loadAfter = load();
 log(`end: ${loadAfter}`);
 
-const fmt = (v: number, d = 2) => (Number.isFinite(v) ? v.toFixed(d) : '—');
-const lines: string[] = [];
-lines.push(`Median over ${seeds.length} seeds (${quick ? 'quick run' : 'full run'}); data standardised before learning. Load: \`${loadAfter}\` (2 cores shared with other work: seconds are pessimistic).`);
-lines.push('');
-lines.push('| configuration | learner | SHD | adjacency F1 | orientation F1 | seconds |');
-lines.push('| --- | --- | ---: | ---: | ---: | ---: |');
-for (const r of records) {
-  const label = r.config === 'sachs' ? `Sachs et al. 2005 (853 rows, 20-edge consensus; learned edges ${r.edges ?? '—'})` : (configs.find((c) => c.id === r.config)?.label ?? r.config);
-  lines.push(`| ${label} | ${r.learner}${r.chose ? ` (chose ${[...new Set(r.chose)].join('/')})` : ''}${r.error ? ` (failed: ${r.error.slice(0, 60)})` : ''} | ${fmt(r.shd, r.config === 'sachs' ? 0 : 1)} | ${fmt(r.adj_f1)} | ${fmt(r.orient_f1)} | ${fmt(r.seconds, 1)} |`);
+interface Run {
+  generated: string;
+  only: string[] | null;
+  load_start: string;
+  load_end: string;
 }
-if (speed.length) {
+interface Results {
+  quick: boolean;
+  seeds: number[];
+  runs: Run[];
+  records: Record[];
+  sachs: { [learner: string]: { shd: number; edges: number } };
+  speed: Speed[];
+}
+
+// With --only, merge into the existing results of the same kind (quick or full), replacing
+// what this run measured, so the full benchmark can be run in parts on a busy machine.
+const outFile = join(here, 'results', 'discovery.json');
+const run: Run = { generated: new Date().toISOString(), only, load_start: loadBefore, load_end: loadAfter };
+let results: Results = { quick, seeds, runs: [run], records, sachs, speed };
+if (only) {
+  try {
+    const prev = JSON.parse(readFileSync(outFile, 'utf8')) as Results;
+    if (prev.quick === quick && Array.isArray(prev.runs)) {
+      const ran = new Set(records.map((r) => r.config));
+      results = {
+        quick,
+        seeds,
+        runs: [...prev.runs, run],
+        records: [...prev.records.filter((r) => !ran.has(r.config)), ...records],
+        sachs: only.includes('sachs') ? sachs : prev.sachs,
+        speed: only.includes('speed') ? speed : prev.speed,
+      };
+    }
+  } catch {
+    // no previous results: keep this run alone
+  }
+}
+const order = [...configs.map((c) => c.id), 'sachs'];
+results.records.sort((a, b) => order.indexOf(a.config) - order.indexOf(b.config));
+mkdirSync(join(here, 'results'), { recursive: true });
+writeFileSync(outFile, JSON.stringify(results, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2) + '\n');
+
+const fmt = (v: number | null, d = 2) => (typeof v === 'number' && Number.isFinite(v) ? v.toFixed(d) : '—');
+const lines: string[] = [];
+lines.push(`Median over ${results.seeds.length} seeds (${results.quick ? 'quick run' : 'full run'}); simulated data standardised before learning. Machine load (\`uptime\`) per part of the run — 2 cores shared with other work, so wall seconds are pessimistic; CPU s is the process's own CPU time:`);
+lines.push('');
+for (const r of results.runs) lines.push(`- ${r.only ? r.only.join(', ') : 'all'}: start \`${r.load_start}\`, end \`${r.load_end}\``);
+lines.push('');
+lines.push('| configuration | learner | SHD | adjacency F1 | orientation F1 | seconds | CPU s |');
+lines.push('| --- | --- | ---: | ---: | ---: | ---: | ---: |');
+for (const r of results.records) {
+  const label = r.config === 'sachs' ? `Sachs et al. 2005 (853 rows, 20-edge consensus; learned edges ${r.edges ?? '—'})` : (configs.find((c) => c.id === r.config)?.label ?? r.config);
+  lines.push(
+    `| ${label} | ${r.learner}${r.chose ? ` (chose ${[...new Set(r.chose)].join('/')})` : ''}${r.error ? ` (failed: ${r.error.slice(0, 60)})` : ''} | ${fmt(r.shd, r.config === 'sachs' ? 0 : 1)} | ${fmt(r.adj_f1)} | ${fmt(r.orient_f1)} | ${fmt(r.seconds, 1)} | ${fmt(r.cpu_seconds, 1)} |`,
+  );
+}
+if (results.speed.length) {
   lines.push('');
-  lines.push('| speed run | learner | seconds | limit | note |');
-  lines.push('| --- | --- | ---: | ---: | --- |');
-  for (const s of speed) lines.push(`| ${s.run} | ${s.learner} | ${fmt(s.seconds, 1)} | ${s.limit} | ${s.note ?? ''} |`);
+  lines.push('| speed run | learner | seconds (wall) | CPU s (all threads) | limit (wall) | note |');
+  lines.push('| --- | --- | ---: | ---: | ---: | --- |');
+  for (const sp of results.speed) lines.push(`| ${sp.run} | ${sp.learner} | ${fmt(sp.seconds, 1)} | ${fmt(sp.cpu_seconds, 1)} | ${sp.limit} | ${sp.note ?? ''} |`);
 }
 console.log(lines.join('\n'));
-
-mkdirSync(join(here, 'results'), { recursive: true });
-writeFileSync(
-  join(here, 'results', 'discovery.json'),
-  JSON.stringify({ generated: new Date().toISOString(), quick, seeds, load: loadAfter, records, sachs, speed }, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2) + '\n',
-);
