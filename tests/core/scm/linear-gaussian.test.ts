@@ -1,7 +1,14 @@
 import { inv, matrix } from 'mathjs';
 import { describe, expect, it } from 'vitest';
 import { Rng } from '../../../src/core/random/rng.js';
-import { counterfactualOutcomes, fitFixedGraph, interventionalOutcomes } from '../../../src/core/scm/index.js';
+import {
+  counterfactualOutcomes,
+  fitFixedGraph,
+  interventionalOutcomes,
+  sample,
+  SCALAR_SIGMA,
+  SCALAR_STRIDE,
+} from '../../../src/core/scm/index.js';
 import { fittedB, LG_B, lgFrame, lgGraph } from './fixtures.js';
 
 /** Total effect of i on j: [(I − B)^−1]_{ij} for x = Bᵀx + e, inverted by mathjs. */
@@ -52,6 +59,28 @@ describe('linear Gaussian SCM: simulated effects against the analytic total effe
     for (let i = 0; i < 1000; i++) expect(a1[i] - a0[i]).toBeCloseTo(fitted, 9);
     const [r0, r1] = counterfactualOutcomes(model, 0, [{ type: 'set', variable: 'X', value: 0 }, { type: 'set', variable: 'X', value: 1 }], 'Y');
     for (let i = 0; i < r0.length; i++) expect(r1[i] - r0[i]).toBeCloseTo(fitted, 9);
+  });
+
+  it('sample() draws from the fitted model: means match the data (OLS fits preserve them), Var(Y) matches T·diag(σ²)·Tᵀ', () => {
+    const n = 40_000;
+    const frame = lgFrame(5000, 101);
+    const batch = sample(model, 0, n, Rng.create(12));
+    for (let j = 0; j < 5; j++) {
+      const col = batch.values.subarray(j * n, (j + 1) * n);
+      const [m, v] = meanVar(col);
+      const [dm] = meanVar(frame.columns[j].values);
+      expect(Math.abs(m - dm)).toBeLessThan(4 * Math.sqrt(v / n));
+    }
+    // Var(Y) = Σ_k T[k][Y]² σ_k², T = (I − B̂)^−1, σ_k the fitted residual sd.
+    const Bh = fittedB(model);
+    let varY = 0;
+    for (let k = 0; k < 5; k++) {
+      const sigma = model.mechScalars[model.mechanismOf[k] * SCALAR_STRIDE + SCALAR_SIGMA];
+      varY += (totalEffect(Bh, k, 4) * sigma) ** 2;
+    }
+    const [, v] = meanVar(batch.values.subarray(4 * n, 5 * n));
+    // Sampling sd of a variance estimate of a normal: v·sqrt(2/(n−1)).
+    expect(Math.abs(v - varY)).toBeLessThan(4 * varY * Math.sqrt(2 / (n - 1)));
   });
 
   it('a non-descendant of X is unaffected by do(X)', () => {
