@@ -79,11 +79,6 @@ export const DATA_ERRORS = {
     title: 'Undeclared level',
     template: 'Row {row}, column "{column}": the value is not one of the declared levels {levels}.',
   },
-  ERR_DATA_NUL_CHARACTER: {
-    status: 400,
-    title: 'NUL character',
-    template: '{where} holds a NUL character (code 0), which cannot be stored; remove it.',
-  },
   ERR_DATA_BAD_CELL: {
     status: 400,
     title: 'Bad cell',

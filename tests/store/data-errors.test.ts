@@ -20,7 +20,6 @@ describe('data error catalogue', () => {
       ERR_DATA_NOT_BINARY: 400,
       ERR_DATA_TOO_MANY_LEVELS: 400,
       ERR_DATA_UNKNOWN_LEVEL: 400,
-      ERR_DATA_NUL_CHARACTER: 400,
       ERR_DATA_BAD_CELL: 400,
       ERR_DATA_BAD_SCHEMA: 400,
       ERR_DATA_SCHEMA_MISMATCH: 400,

@@ -245,8 +245,8 @@ describe.each(backendNames())('datasets on %s', (backend) => {
       expect(await json([[1, 'text']], { b: 'continuous' })).toBe('ERR_DATA_NOT_A_NUMBER');
       expect(await json([[1, 2]], { nope: 'continuous' })).toBe('ERR_DATA_BAD_SCHEMA');
       expect(await json([[1, 2, 3]])).toBe('ERR_DATA_RAGGED_ROW');
-      expect(await json([[1, 'a'], [2, 'b\u0000c']])).toBe('ERR_DATA_NUL_CHARACTER');
-      expect(await codeOf(svc.createFromJson({ workspaceId: ws, name: 'n', table: { columns: ['a', 'b\u0000'], rows: [[1, 2]] } }))).toBe('ERR_DATA_NUL_CHARACTER');
+      expect(await json([[1, 'a'], [2, 'b\u0000c']])).toBe('ERR_DATA_MALFORMED_CSV');
+      expect(await codeOf(svc.createFromJson({ workspaceId: ws, name: 'n', table: { columns: ['a', 'b\u0000'], rows: [[1, 2]] } }))).toBe('ERR_DATA_BAD_SCHEMA');
       expect(await codeOf(svc.createFromJson({ workspaceId: ws, name: '', table: { columns: ['a'], rows: [[1]] } }))).toBe('ERR_DATA_BAD_NAME');
       expect(await snapshot(t.db)).toEqual(before);
     });

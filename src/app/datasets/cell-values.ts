@@ -84,3 +84,6 @@ export function sortLevels(labels: string[]): string[] {
   }
   return [...labels].sort((x, y) => (x < y ? -1 : x > y ? 1 : 0));
 }
+
+/** Reason given (ERR_DATA_MALFORMED_CSV) for a NUL character, which PostgreSQL text cannot hold. */
+export const NUL_REASON = (column: string) => `column "${column}" holds a NUL character (code 0), which cannot be stored`;

@@ -1,5 +1,5 @@
 import { dataError } from '../../errors/data-errors.js';
-import { booleanOrder, isMissing, NOT_FINITE, readNumber, sortLevels, trimCell } from './cell-values.js';
+import { NUL_REASON, booleanOrder, isMissing, NOT_FINITE, readNumber, sortLevels, trimCell } from './cell-values.js';
 import type { ColumnDeclaration, ColumnKind, ColumnSchema, IngestLimits, SchemaDeclaration } from './types.js';
 
 /**
@@ -20,7 +20,7 @@ export function checkHeader(header: readonly string[], limits: IngestLimits): st
   for (let j = 0; j < names.length; j++) {
     const name = names[j];
     if (name.length === 0) throw dataError('ERR_DATA_EMPTY_COLUMN_NAME', { position: j + 1 });
-    if (name.includes('\u0000')) throw dataError('ERR_DATA_NUL_CHARACTER', { where: `The name of column ${j + 1}`, position: j + 1 });
+    if (name.includes('\u0000')) throw dataError('ERR_DATA_BAD_SCHEMA', { column: `#${j + 1}`, reason: 'the name holds a NUL character (code 0)' });
     if (name.length > limits.maxColumnNameLength) {
       throw dataError('ERR_DATA_COLUMN_NAME_TOO_LONG', { position: j + 1, length: name.length, limit: limits.maxColumnNameLength });
     }
@@ -82,7 +82,7 @@ function scanColumn(sample: readonly string[][], j: number, name: string, maxLev
       if (!Number.isInteger(v)) scan.integers = false;
     } else if (status[0] === NOT_FINITE && scan.nonFiniteRow === 0) scan.nonFiniteRow = r + 1;
     if (!scan.tooMany && !scan.distinct.has(s)) {
-      if (s.includes('\u0000')) throw dataError('ERR_DATA_NUL_CHARACTER', { where: `Row ${r + 1}, column "${name}"`, row: r + 1, column: name });
+      if (s.includes('\u0000')) throw dataError('ERR_DATA_MALFORMED_CSV', { row: r + 1, column: name, reason: NUL_REASON(name) });
       if (scan.distinct.size >= maxLevels) {
         scan.tooMany = true;
         scan.tooManyRow = r + 1;

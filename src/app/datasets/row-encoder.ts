@@ -1,5 +1,5 @@
 import { dataError } from '../../errors/data-errors.js';
-import { csvQuote, isMissing, NOT_A_NUMBER, readNumber, sortLevels, trimCell } from './cell-values.js';
+import { NUL_REASON, csvQuote, isMissing, NOT_A_NUMBER, readNumber, sortLevels, trimCell } from './cell-values.js';
 import type { BatchStats } from './column-stats.js';
 import type { ColumnSchema, IngestLimits } from './types.js';
 
@@ -157,7 +157,7 @@ export class RowEncoder {
       return e;
     }
     if (c.schema.levelsDeclared) throw dataError('ERR_DATA_UNKNOWN_LEVEL', { row, column: name, levels: JSON.stringify(c.levels) });
-    if (s.includes('\u0000')) throw dataError('ERR_DATA_NUL_CHARACTER', { where: `Row ${row}, column "${name}"`, row, column: name });
+    if (s.includes('\u0000')) throw dataError('ERR_DATA_MALFORMED_CSV', { row, column: name, reason: NUL_REASON(name) });
     if (c.levels.length >= this.limits.maxLevels) throw dataError('ERR_DATA_TOO_MANY_LEVELS', { column: name, limit: this.limits.maxLevels, row });
     const e = { count: 0, csv: csvQuote(s) };
     c.levels.push(s);
