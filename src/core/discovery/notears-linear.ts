@@ -1,0 +1,173 @@
+import type { Frame } from '../frame/frame.js';
+import { gram } from '../linalg/matmul.js';
+import type { Rng } from '../random/rng.js';
+import { createAcyclicity, type AcyclicityForm } from './acyclicity.js';
+import type { CompiledKnowledge } from './knowledge.js';
+import type { Learner, LearnResult } from './learner.js';
+import { minimiseOwlqn } from './optim/owlqn.js';
+import { finishDag, frameToMatrix } from './notears-common.js';
+
+/**
+ * Linear continuous-optimisation learner: least squares + L1 under a smooth acyclicity
+ * constraint, solved by an augmented Lagrangian (Zheng, Aragam, Ravikumar & Xing 2018,
+ * "DAGs with NO TEARS", NeurIPS):
+ *
+ *   min_W  ½ tr((I−W)ᵀ S (I−W)) + λ‖W‖₁   s.t.  h(W∘W) = 0,   S = XᵀX/n (centred X)
+ *
+ * which equals the paper's (1/2n)‖X − XW‖²_F. S is computed once, so each loss/gradient
+ * costs one d×d×d product, independent of n. Outer loop as in the paper: minimise
+ * L(W) + ρ/2 h² + α h, raise ρ ×10 until h falls below ¼ of its previous value, then
+ * α ← α + ρh; stop at h ≤ hTol or ρ ≥ rhoMax. Inner solver: OWL-QN (optim/owlqn.ts) on W
+ * directly, with forbidden entries (diagonal, tiers, forbidden edges) pinned at 0 and no
+ * L1 on required edges (memory 5, relative-decrease stop innerTol). Finally |W_ij| < threshold is set to 0 (required edges stay) and any
+ * remaining cycle loses its weakest edge (prune-cycles.ts).
+ *
+ * Every column is treated as numeric with a squared loss (binary as a linear probability
+ * model, categorical by its standardised code); the notes say so when that happens.
+ */
+export interface LinearNotearsOptions {
+  /** L1 weight λ. Default 0.1 (the value used in the paper's experiments). */
+  readonly lambda1: number;
+  /** Final threshold on |W_ij| (standardised data). Default 0.3, the paper's value. */
+  readonly threshold: number;
+  /**
+   * Acyclicity function. Default 'logdet' (Bello et al. 2022, s = 1): on our development runs
+   * (unstandardised ER2 data, d = 10 and 30, seed 99) it reached SHD 1 and 2 against 5 and 42
+   * for 'expm', and each evaluation is about 10× cheaper at d = 100 (one LU instead of expm).
+   */
+  readonly form: AcyclicityForm;
+  /** Stop when h ≤ hTol. Default 1e-8. */
+  readonly hTol: number;
+  /** Largest penalty ρ. Default 1e16. */
+  readonly rhoMax: number;
+  /** Outer (dual) iterations. Default 100. */
+  readonly maxOuter: number;
+  /** Inner OWL-QN iterations per solve. Default 1000. */
+  readonly maxInner: number;
+  /**
+   * Inner stop: relative decrease of the penalised objective ≤ innerTol. Default 1e-7: on our
+   * development runs (d = 20–30, seeds 99) it gave the same graphs as 2.2e-9 in about 40% of the time.
+   */
+  readonly innerTol: number;
+}
+
+export const LINEAR_NOTEARS_DEFAULTS: LinearNotearsOptions = {
+  lambda1: 0.1,
+  threshold: 0.3,
+  form: 'logdet',
+  hTol: 1e-8,
+  rhoMax: 1e16,
+  maxOuter: 100,
+  maxInner: 1000,
+  innerTol: 1e-7,
+};
+
+function validate(o: Partial<LinearNotearsOptions>): LinearNotearsOptions {
+  const v = { ...LINEAR_NOTEARS_DEFAULTS, ...o };
+  if (!(v.lambda1 >= 0)) throw new RangeError(`linear-notears: lambda1 must be ≥ 0, got ${v.lambda1}`);
+  if (!(v.threshold >= 0)) throw new RangeError(`linear-notears: threshold must be ≥ 0, got ${v.threshold}`);
+  if (v.form !== 'expm' && v.form !== 'logdet') throw new RangeError(`linear-notears: form must be 'expm' or 'logdet', got ${String(v.form)}`);
+  if (!(v.hTol > 0) || !(v.rhoMax > 1)) throw new RangeError('linear-notears: hTol must be > 0 and rhoMax > 1');
+  if (!(v.innerTol > 0)) throw new RangeError(`linear-notears: innerTol must be > 0, got ${v.innerTol}`);
+  if (!(v.maxOuter >= 1) || !(v.maxInner >= 1)) throw new RangeError('linear-notears: maxOuter and maxInner must be ≥ 1');
+  return v;
+}
+
+export const linearNotears: Learner<LinearNotearsOptions> = {
+  name: 'linear-notears',
+  learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<LinearNotearsOptions>, _rng: Rng): LearnResult {
+    const o = validate(options);
+    const { x, names, nonContinuous } = frameToMatrix(frame, knowledge, 'linear-notears');
+    const d = names.length;
+    const n = frame.nRows;
+    const dd = d * d;
+    const S = gram(x);
+    for (let t = 0; t < dd; t++) S.data[t] /= n;
+
+    const fixed = new Uint8Array(dd);
+    const l1 = new Float64Array(dd);
+    for (let t = 0; t < dd; t++) {
+      fixed[t] = knowledge.forbidden[t];
+      l1[t] = knowledge.required[t] === 1 ? 0 : o.lambda1;
+    }
+    const h = createAcyclicity(d, o.form);
+    const G = new Float64Array(dd);
+    const A = new Float64Array(dd);
+    const gA = new Float64Array(dd);
+    let rho = 1;
+    let alpha = 0;
+
+    const objective = (w: Float64Array, g: Float64Array): number => {
+      const loss = leastSquaresLoss(d, S.data, w, g, G);
+      for (let t = 0; t < dd; t++) A[t] = w[t] * w[t];
+      const hv = h(A, gA);
+      if (!Number.isFinite(hv)) return Infinity;
+      const c = rho * hv + alpha;
+      for (let t = 0; t < dd; t++) g[t] += 2 * c * w[t] * gA[t];
+      return loss + 0.5 * rho * hv * hv + alpha * hv;
+    };
+    const hOf = (w: Float64Array): number => {
+      for (let t = 0; t < dd; t++) A[t] = w[t] * w[t];
+      return h(A, gA);
+    };
+
+    const w = new Float64Array(dd);
+    const wNew = new Float64Array(dd);
+    let hCur = Infinity;
+    let outer = 0;
+    let inner = 0;
+    let evaluations = 0;
+    for (; outer < o.maxOuter; outer++) {
+      let hNew = Infinity;
+      while (rho < o.rhoMax) {
+        wNew.set(w);
+        const res = minimiseOwlqn(objective, wNew, { l1, fixed, maxIter: o.maxInner, fTol: o.innerTol, memory: 5 });
+        inner += res.iterations;
+        evaluations += res.evaluations;
+        hNew = hOf(wNew);
+        if (hNew > 0.25 * hCur) rho *= 10;
+        else break;
+      }
+      w.set(wNew);
+      hCur = hNew;
+      alpha += rho * hCur;
+      if (hCur <= o.hTol || rho >= o.rhoMax) break;
+    }
+
+    const notes = [
+      `augmented Lagrangian: ${outer + 1} outer iterations, ${inner} OWL-QN iterations, ${evaluations} evaluations; final h = ${hCur.toExponential(3)}, rho = ${rho.toExponential(1)}`,
+      `acyclicity ${o.form === 'expm' ? 'tr(e^{W∘W}) − d (Zheng et al. 2018)' : '−log det(I − W∘W) (Bello et al. 2022)'}; lambda1 = ${o.lambda1}; threshold |w| ≥ ${o.threshold}`,
+    ];
+    if (hCur > o.hTol) notes.push(`h did not reach ${o.hTol} before rho hit ${o.rhoMax}; cycles (if any) were removed after thresholding`);
+    if (nonContinuous.length > 0) notes.push(`columns ${nonContinuous.join(', ')} are binary/categorical and were treated as numeric with a squared loss`);
+    return finishDag('linear-notears', names, w, o.threshold, knowledge, notes);
+  },
+};
+
+/**
+ * ½ tr((I−W)ᵀ S (I−W)) = (1/2n)‖X − XW‖²_F for S = XᵀX/n (symmetric, d×d); writes the
+ * gradient −S(I−W) into `grad`. `work` is d×d scratch. Cost O(d · nnz(W)): G = WᵀS is built
+ * from the nonzeros of W (sparse under L1), and (SW)_ij = G_ji because S is symmetric.
+ */
+export function leastSquaresLoss(d: number, S: Float64Array, w: Float64Array, grad: Float64Array, work: Float64Array): number {
+  work.fill(0);
+  for (let k = 0; k < d; k++) {
+    const kd = k * d;
+    for (let j = 0; j < d; j++) {
+      const wkj = w[kd + j];
+      if (wkj === 0) continue;
+      const jd = j * d;
+      for (let i = 0; i < d; i++) work[jd + i] += wkj * S[kd + i];
+    }
+  }
+  let loss = 0;
+  for (let i = 0; i < d; i++) {
+    for (let j = 0; j < d; j++) {
+      const t = i * d + j;
+      const r = S[t] - work[j * d + i]; // (S(I−W))_ij
+      loss += ((i === j ? 1 : 0) - w[t]) * r;
+      grad[t] = -r;
+    }
+  }
+  return 0.5 * loss;
+}
