@@ -16,7 +16,10 @@
  * A discrete outcome is reported as the probability of `outcomeLevel` (binary: level 1): per
  * draw, the share of the outcome's own noise posterior (an interval of u, or all of [0, 1) when
  * not given) that yields the level under the arm — so a given outcome is reproduced with
- * probability 1 under the factual arm.
+ * probability 1 under the factual arm. When the row leaves the outcome out but gives some of its
+ * descendants, its noise is drawn and weighted like any other, each draw counts 0 or 1, and the
+ * interval of such a probability is correspondingly coarse (often [0, 1]); the estimate is the
+ * posterior probability.
  * Draws per row: a row whose answer is fully determined (every variable the query reads is
  * given, the recomputed ones continuous) needs one unit per graph; otherwise graph g gets
  * max(MIN_GRAPH_DRAWS, round(draws · w_g)) units. Pooled over graphs with weights w_g × (the
@@ -24,7 +27,7 @@
  * weighted central quantiles; the per-graph breakdown does the same within each graph.
  */
 import type { Rng } from '../random/rng.js';
-import { abductRows, encodeRows, MAX_POSTED_ROWS, type PostedValue, processMask, rowsWorkspace } from '../scm/abduct-rows.js';
+import { abductRows, encodeRows, MAX_POSTED_ROWS, type PostedRows, type PostedValue, processMask, rowsWorkspace } from '../scm/abduct-rows.js';
 import type { CompiledModel } from '../scm/compiled-model.js';
 import { KIND_CATEGORICAL, KIND_CONTINUOUS } from '../scm/compiled-model.js';
 import type { InterventionValue } from '../scm/intervention.js';
@@ -233,7 +236,10 @@ export function whatIf(
     const N = units.n;
     const V = units.values;
     const rs = units.rowStart;
-    if (lv >= 0) outcomeIntervals(model, yMechOf(g), y, posted, V, rs, N, ws.scratch, ws.mean, yLo, yHi);
+    if (lv >= 0) {
+      const informed = outcomeInformed(model, g, y, posted, process[g]);
+      outcomeIntervals(model, yMechOf(g), y, posted, informed, V, units.noise, rs, N, ws.scratch, ws.mean, yLo, yHi);
+    }
     // Likelihood weights, normalised within (row, graph) to sum to w_g.
     for (let r = 0; r < n; r++) {
       let mx = -Infinity;
@@ -400,15 +406,34 @@ function applyArm(model: CompiledModel, arm: ResolvedArm, t: number, V: Float64A
 }
 
 /**
+ * Per row: 1 if the row leaves the outcome out but gives a processed descendant of it in graph g
+ * (then the outcome's drawn noise is weighted by evidence and must be used as drawn).
+ */
+function outcomeInformed(model: CompiledModel, g: number, y: number, posted: PostedRows, process: Uint8Array): Uint8Array {
+  const n = posted.n;
+  const out = new Uint8Array(n);
+  const de = descendantMask(model, g, [y]);
+  for (let r = 0; r < n; r++) {
+    if (!Number.isNaN(posted.values[y * n + r])) continue;
+    for (let j = 0; j < model.p && out[r] === 0; j++) if (de[j] === 1 && process[j] === 1 && !Number.isNaN(posted.values[j * n + r])) out[r] = 1;
+  }
+  return out;
+}
+
+/**
  * The posterior interval [lo, hi) of the discrete outcome's own noise u per unit: the interval
- * of its given level under the factual parents, or [0, 1) when the row does not give it.
+ * of its given level under the factual parents; [0, 1) when the row does not give it and nothing
+ * it gives depends on it (the probability is then averaged over u exactly); the drawn u itself
+ * (lo = hi = u, a 0/1 outcome per draw) when the row leaves it out but gives evidence about it.
  */
 function outcomeIntervals(
   model: CompiledModel,
   m: number,
   y: number,
-  posted: { n: number; values: Float64Array },
+  posted: PostedRows,
+  informed: Uint8Array,
   V: Float64Array,
+  noise: Float64Array,
   rs: Int32Array,
   N: number,
   scratch: Float64Array,
@@ -424,8 +449,8 @@ function outcomeIntervals(
     const x = posted.values[y * n + r];
     for (let u = rs[r]; u < rs[r + 1]; u++) {
       if (Number.isNaN(x)) {
-        lo[u] = 0;
-        hi[u] = 1;
+        lo[u] = informed[r] === 1 ? noise[y * N + u] : 0;
+        hi[u] = informed[r] === 1 ? noise[y * N + u] : 1;
       } else if (binary) {
         lo[u] = x === 1 ? 0 : mean[u];
         hi[u] = x === 1 ? mean[u] : 1;

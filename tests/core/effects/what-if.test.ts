@@ -8,6 +8,7 @@ import { MAX_POSTED_ROWS } from '../../../src/core/scm/abduct-rows.js';
 import { fitFixedGraph, fitModel } from '../../../src/core/scm/fit-model.js';
 import { InterventionError } from '../../../src/core/scm/intervention.js';
 import { normalQuantile } from '../../../src/core/stats/normal.js';
+import { mixedFrame, mixedGraph } from '../scm/fixtures.js';
 
 const cont = (name: string, v: Float64Array): Column => ({ name, kind: 'continuous', values: v });
 const expit = (x: number) => 1 / (1 + Math.exp(-x));
@@ -136,6 +137,53 @@ describe('what-if on a linear Gaussian model (fixed graph)', () => {
   });
 });
 
+describe('discrete variables: noise posteriors as intervals', () => {
+  it('a binary mediator given as 0 switches under do(t=1) with probability (p1 − p0)/(1 − p0) (monotone coupling)', () => {
+    // x ~ N(0,1); t ~ Bern(expit(0.5x)); m ~ Bern(expit(−1 + 2t)); y = 1 + t + 2m + 0.5x + N(0,1).
+    const rng = Rng.create(41);
+    const n = 6000;
+    const x = new Float64Array(n), t = new Float64Array(n), m = new Float64Array(n), y = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      x[i] = rng.normal();
+      t[i] = rng.uniform() < expit(0.5 * x[i]) ? 1 : 0;
+      m[i] = rng.uniform() < expit(-1 + 2 * t[i]) ? 1 : 0;
+      y[i] = 1 + t[i] + 2 * m[i] + 0.5 * x[i] + rng.normal();
+    }
+    const frame = makeFrame([cont('x', x), { name: 't', kind: 'binary', values: t }, { name: 'm', kind: 'binary', values: m }, cont('y', y)]);
+    const model = fitFixedGraph(frame, graphFromEdges(['x', 't', 'm', 'y'], [['x', 't'], ['t', 'm'], ['m', 'y'], ['t', 'y'], ['x', 'y']]), { seed: 4 });
+    const res = whatIf(model, [{ x: 0, t: 0, m: 0, y: 1.3 }], { treatment: 't', outcome: 'y', arms: [0, 1], draws: 2000 }, Rng.create(8));
+    const u = res.units[0];
+    // u_m | m = 0, t = 0 is uniform on [p0, 1); under t = 1, m = 1 iff u_m < p1.
+    const p0 = expit(-1);
+    const p1 = expit(1);
+    const q = (p1 - p0) / (1 - p0);
+    expect(u.draws).toBe(2000);
+    expect(u.predictions[0].estimate).toBeCloseTo(1.3, 10);
+    // Tolerance 0.15: logistic fit (n = 6000) moves q by about 0.03, OLS moves β by about 0.03, 2000 draws add about 0.02.
+    expect(Math.abs(u.effects[0].estimate - (1 + 2 * q))).toBeLessThan(0.15);
+    // Two-point distribution of the effect: β_ty (no switch, share 1 − q ≈ 0.37) or β_ty + β_my (switch).
+    expect(Math.abs(u.effects[0].lower - 1)).toBeLessThan(0.1);
+    expect(Math.abs(u.effects[0].upper - 3)).toBeLessThan(0.1);
+  });
+
+  it('a categorical parent left out is drawn from its posterior: P(S = b | X = 2) by Bayes\' rule', () => {
+    // mixedFrame: S ∈ {a, b, c} with P = 0.5, 0.3, 0.2 and X = S + N(0, 1) (codes 0, 1, 2).
+    const model = fitFixedGraph(mixedFrame(6000, 5), mixedGraph(), { seed: 6 });
+    const phi = (z: number) => Math.exp(-0.5 * z * z);
+    const post = (0.3 * phi(1)) / (0.5 * phi(2) + 0.3 * phi(1) + 0.2 * phi(0));
+    const res = whatIf(model, [{ X: 2 }], { treatment: 'T', outcome: 'S', arms: ['no', 'yes'], outcomeLevel: 'b', draws: 4000 }, Rng.create(9));
+    // S is not a descendant of T: both arms give the same probability.
+    expect(res.units[0].predictions[0].estimate).toBeCloseTo(res.units[0].predictions[1].estimate, 12);
+    // Tolerance 0.05: fitted frequencies and σ_X (n = 6000) and 4000 weighted draws.
+    expect(Math.abs(res.units[0].predictions[0].estimate - post)).toBeLessThan(0.05);
+    expect(res.units[0].effects[0].estimate).toBe(0);
+    // A given S is reproduced.
+    const given = whatIf(model, [{ X: 2, S: 'b' }], { treatment: 'T', outcome: 'S', arms: ['no'], outcomeLevel: 'b' }, Rng.create(9));
+    expect(given.units[0].predictions[0].estimate).toBe(1);
+    expect(() => whatIf(model, [{ X: 2 }], { treatment: 'T', outcome: 'S', arms: ['no'] }, Rng.create(9))).toThrow(/categorical.*levels: a, b, c/);
+  });
+});
+
 describe('graph set: per-graph breakdown and mixture', () => {
   it('two graphs (t→y with weight 0.6, none with 0.4): the effect mixes to 0.6·β and the interval spans both', () => {
     const rng = Rng.create(21);
@@ -237,6 +285,9 @@ describe('binary treatment and outcome (logistic mechanisms)', () => {
     expect(() => whatIf(model, [{ x: 'high' }], q, Rng.create(1))).toThrow(/"x" is continuous/);
     expect(() => whatIf(model, [{ x: 0 }], { ...q, treatment: 'dose' }, Rng.create(1))).toThrow(/unknown variable "dose"; known: x, t, y/);
     expect(() => whatIf(model, [{ x: 0 }], { ...q, arms: ['sometimes'] }, Rng.create(1))).toThrow(/no level "sometimes"; levels: control, treated/);
+    expect(() =>
+      whatIf(model, [{ x: 0 }], { ...q, treatment: 'x', arms: [{ policy: [{ if: { variable: 't', in: ['treated'] }, then: 1 }], otherwise: 0 }] }, Rng.create(1)),
+    ).toThrow(/reads "t", a descendant of the treatment/);
     const many = Array.from({ length: MAX_POSTED_ROWS + 1 }, () => ({ x: 0 }));
     expect(() => whatIf(model, many, q, Rng.create(1))).toThrow(RangeError);
     expect(() => whatIf(model, [], q, Rng.create(1))).toThrow(/at least one row/);
