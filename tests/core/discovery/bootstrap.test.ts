@@ -38,6 +38,21 @@ describe('merging replicates into a DagSet', () => {
     checkIdentities(set);
   });
 
+  it('samples a CPDAG with more DAGs than the enumeration cap', () => {
+    // The complete undirected graph on 4 nodes stands for 4! = 24 DAGs (one per order).
+    const nm = ['a', 'b', 'c', 'd'];
+    const full = graphFromEdges(nm, nm.flatMap((u) => nm.filter((v) => v !== u).map((v) => [u, v] as [string, string])));
+    const set = mergeReplicates([{ kind: 'cpdag', graph: full }], nm, Rng.create(2), { enumerationCap: 5 });
+    expect(set.notes.join(' ')).toMatch(/more than 5 DAGs; 5 of its DAGs were sampled/);
+    expect(set.graphs.length).toBeLessThanOrEqual(5);
+    for (const g of set.graphs) {
+      let e = 0;
+      for (const v of g.graph.adj) e += v;
+      expect(e).toBe(6); // a complete DAG on 4 nodes
+    }
+    checkIdentities(set);
+  });
+
   it('caps the number of kept DAGs and renormalises them', () => {
     const g1 = graphFromEdges(names, [['a', 'b']]);
     const g2 = graphFromEdges(names, [['b', 'c']]);
