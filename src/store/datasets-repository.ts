@@ -179,15 +179,23 @@ export function createDatasetsRepository(db: Db) {
     },
 
     /**
-     * One column's values for the chosen batches, in row order: numbers (continuous, binary
-     * codes), labels (categorical) or null (missing).
+     * Values of some columns for the chosen batches in one scan, with each row's row_no (the
+     * arrays are in scan order, aligned with `rowNo`; the caller puts them in row order).
+     * Numbers for continuous and binary columns, labels for categorical ones, null for missing.
      */
-    async readColumn(table: string, sqlColumn: string, batches: readonly number[], tx: Db = db): Promise<(number | string | null)[]> {
-      const r = await tx.query<{ v: (number | string | null)[] | null }>(
-        `SELECT array_agg(${ident(sqlColumn)} ORDER BY row_no) AS v FROM ${ident(table)} WHERE batch = ANY($1::int[])`,
+    async readColumns(
+      table: string,
+      sqlColumns: readonly string[],
+      batches: readonly number[],
+      tx: Db = db,
+    ): Promise<{ rowNo: number[]; values: (number | string | null)[][] }> {
+      const aggs = sqlColumns.map((c, k) => `array_agg(${ident(c)}) AS v${k}`);
+      const r = await tx.query<Record<string, (number | string | null)[] | null>>(
+        `SELECT array_agg(row_no::float8) AS r${aggs.map((a) => `, ${a}`).join('')} FROM ${ident(table)} WHERE batch = ANY($1::int[])`,
         [batches],
       );
-      return r.rows[0]?.v ?? [];
+      const row = r.rows[0] ?? {};
+      return { rowNo: (row.r ?? []) as number[], values: sqlColumns.map((_, k) => row[`v${k}`] ?? []) };
     },
   };
 }

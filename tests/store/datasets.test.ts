@@ -146,6 +146,18 @@ describe.each(backendNames())('datasets on %s', (backend) => {
     expect(await codeOf(svc.loadFrame({ workspaceId: ws, datasetId: d.id, columns: ['nope'] }))).toBe('ERR_DATA_UNKNOWN_COLUMN');
   });
 
+  it('returns rows in row order even when the table no longer stores them in that order', async () => {
+    const r = await svc.createFromCsv({ workspaceId: ws, name: 'reordered', body: body('v,w\n1,a\n2,b\n3,c\n4,d\n') });
+    // An UPDATE writes a new version of row 0 at the end of the heap.
+    await t.db.query(`UPDATE "${r.dataset.table}" SET batch = batch WHERE row_no = 0`);
+    const scan = await t.db.query<{ v: number }>(`SELECT c1 AS v FROM "${r.dataset.table}"`);
+    expect(scan.rows.map((x) => x.v)).toEqual([2, 3, 4, 1]);
+    const f = await svc.loadFrame({ workspaceId: ws, datasetId: r.dataset.id });
+    expect(Array.from(f.frame.columns[0].values)).toEqual([1, 2, 3, 4]);
+    expect(Array.from(f.frame.columns[1].values)).toEqual([0, 1, 2, 3]);
+    await svc.remove(ws, r.dataset.id);
+  });
+
   it('honours declared kinds and levels', async () => {
     const r = await svc.createFromJson({
       workspaceId: ws,

@@ -3,6 +3,28 @@ import { makeFrame } from '../../core/frame/frame.js';
 import { dataError } from '../../errors/data-errors.js';
 import type { DatasetsDeps } from './create-dataset.js';
 
+/** Columns fetched per query (one table scan each; bounds the size of one result row). */
+const COLUMNS_PER_READ = 8;
+
+/**
+ * Null when `rowNo` is already increasing (the usual case: rows are stored in the order they
+ * were loaded); otherwise the permutation that puts the scan in row order.
+ */
+function rowOrder(rowNo: readonly number[]): Int32Array | null {
+  let sorted = true;
+  for (let i = 1; i < rowNo.length; i++) {
+    if (rowNo[i] < rowNo[i - 1]) {
+      sorted = false;
+      break;
+    }
+  }
+  if (sorted) return null;
+  const idx = new Int32Array(rowNo.length);
+  for (let i = 0; i < idx.length; i++) idx[i] = i;
+  idx.sort((a, b) => rowNo[a] - rowNo[b]);
+  return idx;
+}
+
 /** Which rows and variables to load. */
 export interface LoadFrameInput {
   workspaceId: string;
@@ -44,22 +66,21 @@ export async function loadDatasetFrame(deps: DatasetsDeps, input: LoadFrameInput
     : stored;
 
   const columns: Column[] = [];
-  for (const c of chosen) {
-    const raw = await repo.readColumn(ds.table, c.sqlColumn, batches);
-    const values = new Float64Array(raw.length);
-    if (c.kind === 'categorical') {
-      const code = new Map((c.levels ?? []).map((l, i) => [l, i]));
+  for (let start = 0; start < chosen.length; start += COLUMNS_PER_READ) {
+    const group = chosen.slice(start, start + COLUMNS_PER_READ);
+    const { rowNo, values: raws } = await repo.readColumns(ds.table, group.map((c) => c.sqlColumn), batches);
+    const order = rowOrder(rowNo);
+    for (let k = 0; k < group.length; k++) {
+      const c = group[k];
+      const raw = raws[k];
+      const values = new Float64Array(raw.length);
+      const code = c.kind === 'categorical' ? new Map((c.levels ?? []).map((l, i) => [l, i])) : null;
       for (let i = 0; i < raw.length; i++) {
-        const v = raw[i];
-        values[i] = v === null ? NaN : (code.get(String(v)) ?? NaN);
+        const v = raw[order === null ? i : order[i]];
+        values[i] = v === null ? NaN : code ? (code.get(String(v)) ?? NaN) : Number(v);
       }
-    } else {
-      for (let i = 0; i < raw.length; i++) {
-        const v = raw[i];
-        values[i] = v === null ? NaN : Number(v);
-      }
+      columns.push(c.kind === 'continuous' ? { name: c.name, kind: c.kind, values } : { name: c.name, kind: c.kind, values, levels: [...(c.levels ?? [])] });
     }
-    columns.push(c.kind === 'continuous' ? { name: c.name, kind: c.kind, values } : { name: c.name, kind: c.kind, values, levels: [...(c.levels ?? [])] });
   }
   return { frame: makeFrame(columns), batches };
 }
