@@ -71,9 +71,8 @@ describe('bootstrap calibration, two variables', () => {
     expect(edgeProbabilityOf(set, 'x', 'y')).toBeGreaterThanOrEqual(0.9);
   });
 
-  it.runIf(available.has('mlp-notears'))('nonlinear x→y with Gaussian noise: mlp-notears puts ≥ 0.9 on x→y', async () => {
-    const frame = pair(500, 6, gaussian, (x) => Math.tanh(2 * x) + 0.5 * x * x * x, 0.5);
-    const set = await runBootstrap(frame, {}, { learner: 'mlp-notears' }, { replicates: 20, seed: 8, threads: 1 });
-    expect(edgeProbabilityOf(set, 'x', 'y')).toBeGreaterThanOrEqual(0.9);
-  }, 120_000);
+  // Not checked with mlp-notears: on this standardised pair its least-squares score prefers
+  // y→x in every resample (P(x→y) = 0 at B = 20, measured while writing this test). A squared-
+  // error score identifies the direction only under assumptions such as equal noise variances,
+  // which standardisation breaks; the ANM test above uses independence of residuals instead.
 });
