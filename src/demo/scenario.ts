@@ -185,14 +185,15 @@ function evaluate(noise: Noise, forced?: Programme): ScenarioTable {
     let programme: number;
     if (forced !== undefined) programme = PROGRAMMES.indexOf(forced);
     else {
-      const wReport = Math.exp(-0.4 + 0.7 * c + [0.5, 0, -0.3][region]);
-      const wRebate = Math.exp(-0.9 + 0.9 * c + [-0.4, 0, 0.6][region]);
+      const wReport = Math.exp(-0.4 + 0.5 * c + [0.5, 0, -0.3][region]);
+      const wRebate = Math.exp(-0.9 + 0.6 * c + [-0.4, 0, 0.6][region]);
       programme = pick(noise.programme[i], [1, wReport, wRebate]);
     }
-    const sessions = Math.max(0, [0.5, 6, 2][programme] + [0, 0.8, 0.3][programme] * occupants + 1.2 * noise.sessions[i]);
-    const setpoint = 20.5 + [0, 0.3, -0.4][heating] + [0, -0.1, -1.6][programme] + 0.7 * noise.setpoint[i];
+    // Larger households open the app less often per household member's bill.
+    const sessions = Math.max(0, [0.5, 8, 3][programme] - [0, 0.6, 0.3][programme] * occupants + 1.5 * noise.sessions[i]);
+    const setpoint = 20.5 + [0, -0.3, 0.4][heating] + [0, -0.1, -1.6][programme] + 1.1 * noise.setpoint[i];
     // kWh per degree of setpoint: large where heating is electric.
-    const perDegree = [330, 40, 260][heating];
+    const perDegree = [420, 50, 340][heating];
     // Mild nonlinearity in last winter's use: very high users regress towards the middle.
     const d = (prior - 5000) / 1000;
     const winter =
@@ -200,12 +201,12 @@ function evaluate(noise: Noise, forced?: Programme): ScenarioTable {
       0.92 * prior -
       60 * d * d * Math.sign(d) +
       perDegree * (setpoint - 20.5) -
-      0.009 * prior * sessions +
+      0.016 * prior * sessions +
       [0, 150, -100][heating] +
-      60 * occupants +
+      110 * occupants +
       [0, 80, 250][region] +
       300 * noise.winter[i];
-    const lambda = Math.exp(-0.6 + [0, 0.7, 0.9][programme] + 0.00012 * (winter - 5000));
+    const lambda = Math.exp(-0.2 + [0, 0.7, 0.9][programme] + 0.0004 * (winter - 5000));
     const calls = poissonQuantile(noise.calls[i], lambda);
     t.region[i] = REGIONS[region];
     t.dwelling[i] = DWELLINGS[dwelling];
