@@ -29,7 +29,9 @@ import type { Learner, LearnResult } from './learner.js';
  * standardised continuous columns).
  *
  * Knowledge: a variable may be chosen next only when no remaining variable must precede it
- * (a required edge into it, or an earlier tier); forbidden edges are never fitted.
+ * (a required edge into it, or an earlier tier), and a pair the knowledge already orders
+ * adds nothing to the exogeneity score; forbidden edges are never fitted, required ones
+ * never pruned.
  */
 export interface DirectLingamOptions {
   /** Exponent γ of the adaptive-lasso weights. Default 1 (Zou 2006). */
@@ -152,9 +154,11 @@ export function causalOrder(cols: Float64Array[], knowledge: CompiledKnowledge):
         for (let j = i + 1; j < d; j++) {
           if (remaining[j] === 0 || (candidate[i] === 0 && candidate[j] === 0)) continue;
           const r = pairwiseRatio(cols[i], cols[j], entropy[i], entropy[j]);
-          // r > 0 favours i→j: a penalty for j being exogenous, and vice versa.
-          if (r < 0) score[i] += r * r;
-          else score[j] += r * r;
+          // r > 0 favours i→j: a penalty for j being exogenous, and vice versa — unless the
+          // knowledge already orders the pair, when the data's opinion on it is moot.
+          if (r < 0) {
+            if (!precedes(knowledge, i, j, d)) score[i] += r * r;
+          } else if (!precedes(knowledge, j, i, d)) score[j] += r * r;
         }
       }
       let best = Infinity;
@@ -200,6 +204,11 @@ function markCandidates(candidate: Uint8Array, remaining: Uint8Array, k: Compile
     }
   }
   return count;
+}
+
+/** True when the knowledge puts i before j: a required edge i→j, or i in an earlier tier. */
+function precedes(k: CompiledKnowledge, i: number, j: number, d: number): boolean {
+  return k.required[i * d + j] === 1 || (k.tierOf[i] >= 0 && k.tierOf[j] >= 0 && k.tierOf[i] < k.tierOf[j]);
 }
 
 /** Centres and scales to unit variance in place (a constant column becomes all zeros). */

@@ -87,6 +87,20 @@ describe('DirectLiNGAM (Shimizu et al. 2011) with the pairwise measure of Hyvär
     expect(res.notes.join(' ')).toMatch(/^causal order: x5 </m);
   });
 
+  it('keeps a required edge against the data, drops forbidden ones, and keeps the rest right', () => {
+    const f = simulate(B6, 3000, uniform, 15);
+    const names = f.columns.map((c) => c.name);
+    // x1→x0 runs against the truth (x0→x1); x3→x4 is forbidden (true edge).
+    const k = compileKnowledge(names, { required: [['x1', 'x0']], forbidden: [['x3', 'x4']] });
+    const res = directLingam.learn(f, k, {}, Rng.create(1));
+    const adj = res.graph.adj;
+    expect(adj[1 * 6 + 0]).toBe(1);
+    expect(adj[0 * 6 + 1]).toBe(0);
+    expect(adj[3 * 6 + 4]).toBe(0);
+    // Edges not touched by the knowledge and not downstream of the forced order stay found.
+    for (const [i, j] of [[1, 3], [2, 3], [1, 5], [4, 5]]) expect(adj[i * 6 + j], `x${i}→x${j}`).toBe(1);
+  });
+
   it('is deterministic', () => {
     const f = simulate(B6, 1000, laplace, 14);
     const k = compileKnowledge(f.columns.map((c) => c.name), {});

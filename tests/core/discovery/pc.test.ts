@@ -112,6 +112,19 @@ describe('PC-stable', () => {
     expect(edges(run(makeFrame([cont('x', x), cont('y', y), cont('z', z)])))).toEqual(['x—y', 'y—z']);
   });
 
+  it('maxCondSize 0 runs marginal tests only: the chain keeps its shortcut x—z', () => {
+    const n = 2000;
+    const [x, e1, e2] = gaussians(n, 3, 2);
+    const y = new Float64Array(n);
+    const z = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      y[r] = 0.8 * x[r] + 0.6 * e1[r];
+      z[r] = -0.7 * y[r] + 0.7 * e2[r];
+    }
+    const f = makeFrame([cont('x', x), cont('y', y), cont('z', z)]);
+    expect(edges(run(f, {}, { maxCondSize: 0 }))).toEqual(['x—y', 'x—z', 'y—z']);
+  });
+
   it('orients by the tiers, and Meek R1 carries the orientation on', () => {
     // w→x→y→z chain; only w is placed before x by the tiers: x→y and y→z follow by R1.
     const n = 2000;
