@@ -27,7 +27,19 @@
  * weighted central quantiles; the per-graph breakdown does the same within each graph.
  */
 import type { Rng } from '../random/rng.js';
-import { abductRows, encodeRows, MAX_POSTED_ROWS, type PostedRows, type PostedValue, processMask, rowsWorkspace } from '../scm/abduct-rows.js';
+import {
+  abductRows,
+  encodeRows,
+  levelProbability,
+  MAX_POSTED_ROWS,
+  outcomeIntervals,
+  type PostedRows,
+  type PostedValue,
+  processMask,
+  type RowsWorkspace,
+  rowsWorkspace,
+  sliceRows,
+} from '../scm/abduct-rows.js';
 import type { CompiledModel } from '../scm/compiled-model.js';
 import { KIND_CATEGORICAL, KIND_CONTINUOUS } from '../scm/compiled-model.js';
 import type { InterventionValue } from '../scm/intervention.js';
@@ -43,8 +55,15 @@ export { MAX_POSTED_ROWS };
 
 /** Default number of draws per row for values not given. */
 export const DEFAULT_WHATIF_DRAWS = 200;
-/** Fewest draws a graph of positive weight gets for a row that needs draws. */
+/**
+ * Draws a graph of positive weight gets at least, for a row that needs draws: round(draws / number
+ * of graphs) clamped to 2..MIN_GRAPH_DRAWS, so the total stays near `draws` with many graphs.
+ */
 export const MIN_GRAPH_DRAWS = 25;
+/** Most simulated units (rows × draws over all graphs) one call may need (a documented bound on memory: A + 1 doubles each). */
+export const MAX_WHATIF_UNITS = 2_000_000;
+/** Values (variables × units) simulated at once per graph; rows are processed in chunks of this size. */
+const CHUNK_VALUES = 2_000_000;
 
 /** A what-if question on posted units. */
 export interface WhatIfQuery {
@@ -176,6 +195,11 @@ export function whatIf(
   const causal = new Uint8Array(G);
   const drawsOf = new Int32Array(G * n);
   const readAny = new Uint8Array(p);
+  // Each graph of positive weight gets at least this many draws for a row that needs draws.
+  let live = 0;
+  for (let g = 0; g < G; g++) if (model.graphWeights[g] > 0) live++;
+  const minGraphDraws = Math.min(D, Math.max(2, Math.min(MIN_GRAPH_DRAWS, Math.round(D / live))));
+  let maxRowDraws = 1;
   for (let g = 0; g < G; g++) {
     const de = descendantMask(model, g, [t]);
     for (const v of reads) {
@@ -192,7 +216,8 @@ export function whatIf(
     for (let j = 0; j < p; j++) readAny[j] |= proc[j];
     let discreteRecomputed = false;
     for (let k = 0; k < aff.length; k++) if (aff[k] !== y && model.kinds[aff[k]] !== KIND_CONTINUOUS) discreteRecomputed = true;
-    const Dg = Math.max(Math.min(D, MIN_GRAPH_DRAWS), Math.round(D * model.graphWeights[g]));
+    const Dg = Math.max(minGraphDraws, Math.round(D * model.graphWeights[g]));
+    if (Dg > maxRowDraws) maxRowDraws = Dg;
     for (let r = 0; r < n; r++) {
       let need = discreteRecomputed;
       for (let j = 0; j < p && !need && posted.incomplete[r] === 1; j++) need = proc[j] === 1 && Number.isNaN(pv[j * n + r]);
@@ -219,77 +244,37 @@ export function whatIf(
   }
   const pool = poolStart[n];
 
-  // ---- simulate: per graph, abduct once, then every arm on the same units ----
-  const outcome = new Float64Array(A * pool);
-  const weight = new Float64Array(pool);
-  const ess = new Float64Array(n).fill(Infinity);
-  const essShare = new Float64Array(n).fill(1);
-  const ws = rowsWorkspace(model, maxUnits);
-  const work = new Float64Array(p * maxUnits);
-  const yLo = new Float64Array(maxUnits);
-  const yHi = new Float64Array(maxUnits);
-  const yMechOf = (g: number) => model.mechanismOf[g * p + y];
+  // ---- simulate: per graph and chunk of rows, abduct once, then every arm on the same units ----
+  if (pool > MAX_WHATIF_UNITS) {
+    throw new RangeError(`rows × draws needs ${pool} simulated units, more than ${MAX_WHATIF_UNITS}: post fewer rows or ask for fewer draws`);
+  }
+  const cap = Math.min(maxUnits, Math.max(maxRowDraws, Math.floor(CHUNK_VALUES / p)));
+  const sim: SimState = {
+    outcome: new Float64Array(A * pool),
+    weight: new Float64Array(pool),
+    ess: new Float64Array(n).fill(Infinity),
+    essShare: new Float64Array(n).fill(1),
+    ws: rowsWorkspace(model, cap),
+    work: new Float64Array(p * cap),
+    yLo: new Float64Array(cap),
+    yHi: new Float64Array(cap),
+    pool,
+    poolStart,
+    graphOff,
+  };
   for (let g = 0; g < G; g++) {
-    const wg = model.graphWeights[g];
-    if (!(wg > 0)) continue;
-    const units = abductRows(model, g, posted, process[g], drawsOf.subarray(g * n, (g + 1) * n), rng.stream(g), ws);
-    const N = units.n;
-    const V = units.values;
-    const rs = units.rowStart;
-    if (lv >= 0) {
-      const informed = outcomeInformed(model, g, y, posted, process[g]);
-      outcomeIntervals(model, yMechOf(g), y, posted, informed, V, units.noise, rs, N, ws.scratch, ws.mean, yLo, yHi);
-    }
-    // Likelihood weights, normalised within (row, graph) to sum to w_g.
-    for (let r = 0; r < n; r++) {
-      let mx = -Infinity;
-      for (let u = rs[r]; u < rs[r + 1]; u++) if (units.logWeight[u] > mx) mx = units.logWeight[u];
-      let s = 0;
-      let s2 = 0;
-      for (let u = rs[r]; u < rs[r + 1]; u++) {
-        const e = Math.exp(units.logWeight[u] - mx);
-        ws.tmp[u] = e;
-        s += e;
-        s2 += e * e;
-      }
-      const d = rs[r + 1] - rs[r];
-      if (d > 1) {
-        const e = (s * s) / s2;
-        if (e < ess[r]) ess[r] = e;
-        if (e / d < essShare[r]) essShare[r] = e / d;
-      }
-      const base = poolStart[r] + graphOff[g * n + r] - rs[r];
-      for (let u = rs[r]; u < rs[r + 1]; u++) weight[base + u] = (wg * ws.tmp[u]) / s;
-    }
-    work.set(V.subarray(0, p * N));
-    const aff = affected[g];
-    for (let a = 0; a < A; a++) {
-      applyArm(model, arms[a], t, V, work, N);
-      for (let k = 0; k < aff.length; k++) {
-        const j = aff[k];
-        if (j === y) continue;
-        const m = model.mechanismOf[g * p + j];
-        mechanismOutput(model, m, work, N, ws.scratch, ws.mean);
-        applyNoise(model, j, ws.mean, units.noise, j * N, N, work, j * N);
-      }
-      const out = ws.tmp;
-      if (lv < 0) {
-        if (causal[g] === 1) {
-          mechanismOutput(model, yMechOf(g), work, N, ws.scratch, ws.mean);
-          for (let u = 0; u < N; u++) out[u] = ws.mean[u] + units.noise[y * N + u];
-        } else for (let u = 0; u < N; u++) out[u] = V[y * N + u];
-      } else {
-        mechanismOutput(model, yMechOf(g), work, N, ws.scratch, ws.mean);
-        levelProbability(model, y, lv, ws.mean, yLo, yHi, N, out);
-      }
-      for (let r = 0; r < n; r++) {
-        const base = a * pool + poolStart[r] + graphOff[g * n + r] - rs[r];
-        for (let u = rs[r]; u < rs[r + 1]; u++) outcome[base + u] = out[u];
-      }
-      for (let k = 0; k < aff.length; k++) work.set(V.subarray(aff[k] * N, (aff[k] + 1) * N), aff[k] * N);
-      work.set(V.subarray(t * N, (t + 1) * N), t * N);
+    if (!(model.graphWeights[g] > 0)) continue;
+    const gr = rng.stream(g);
+    for (let r0 = 0, chunk = 0; r0 < n; chunk++) {
+      let r1 = r0;
+      let size = 0;
+      while (r1 < n && (r1 === r0 || size + drawsOf[g * n + r1] <= cap)) size += drawsOf[g * n + r1++];
+      const part = r0 === 0 && r1 === n ? posted : sliceRows(posted, r0, r1);
+      simulateChunk(model, g, part, r0, n, process[g], affected[g], causal[g] === 1, drawsOf.subarray(g * n + r0, g * n + r1), arms, t, y, lv, gr.stream(chunk), sim);
+      r0 = r1;
     }
   }
+  const { outcome, weight, ess, essShare } = sim;
 
   // ---- summaries per row ----
   const labels = arms.map((a) => a.label);
@@ -361,6 +346,102 @@ export function whatIf(
   };
 }
 
+/** Buffers and pooled results shared by the chunks of one call. */
+interface SimState {
+  /** A × pool outcome per arm and pooled unit. */
+  readonly outcome: Float64Array;
+  /** Pooled weight per unit: w_g × the normalised likelihood weight within (row, graph). */
+  readonly weight: Float64Array;
+  readonly ess: Float64Array;
+  readonly essShare: Float64Array;
+  readonly ws: RowsWorkspace;
+  readonly work: Float64Array;
+  readonly yLo: Float64Array;
+  readonly yHi: Float64Array;
+  readonly pool: number;
+  readonly poolStart: Int32Array;
+  readonly graphOff: Int32Array;
+}
+
+/** Rows r0.. of `posted` (n rows in all) in graph g: abduct, weight, run every arm, write into the pool. */
+function simulateChunk(
+  model: CompiledModel,
+  g: number,
+  posted: PostedRows,
+  r0: number,
+  n: number,
+  process: Uint8Array,
+  aff: Int32Array,
+  causal: boolean,
+  draws: Int32Array,
+  arms: readonly ResolvedArm[],
+  t: number,
+  y: number,
+  lv: number,
+  rng: Rng,
+  sim: SimState,
+): void {
+  const p = model.p;
+  const wg = model.graphWeights[g];
+  const ws = sim.ws;
+  const units = abductRows(model, g, posted, process, draws, rng, ws);
+  const N = units.n;
+  const V = units.values;
+  const rs = units.rowStart;
+  const nr = posted.n;
+  const yMech = model.mechanismOf[g * p + y];
+  if (lv >= 0) outcomeIntervals(model, g, y, posted, process, V, units.noise, rs, N, ws.scratch, ws.mean, sim.yLo, sim.yHi);
+  // Likelihood weights, normalised within (row, graph) to sum to w_g.
+  for (let r = 0; r < nr; r++) {
+    let mx = -Infinity;
+    for (let u = rs[r]; u < rs[r + 1]; u++) if (units.logWeight[u] > mx) mx = units.logWeight[u];
+    let s = 0;
+    let s2 = 0;
+    for (let u = rs[r]; u < rs[r + 1]; u++) {
+      const e = Math.exp(units.logWeight[u] - mx);
+      ws.tmp[u] = e;
+      s += e;
+      s2 += e * e;
+    }
+    const d = rs[r + 1] - rs[r];
+    const R = r0 + r;
+    if (d > 1) {
+      const e = (s * s) / s2;
+      if (e < sim.ess[R]) sim.ess[R] = e;
+      if (e / d < sim.essShare[R]) sim.essShare[R] = e / d;
+    }
+    const base = sim.poolStart[R] + sim.graphOff[g * n + R] - rs[r];
+    for (let u = rs[r]; u < rs[r + 1]; u++) sim.weight[base + u] = (wg * ws.tmp[u]) / s;
+  }
+  const work = sim.work;
+  work.set(V.subarray(0, p * N));
+  for (let a = 0; a < arms.length; a++) {
+    applyArm(model, arms[a], t, V, work, N);
+    for (let k = 0; k < aff.length; k++) {
+      const j = aff[k];
+      if (j === y) continue;
+      mechanismOutput(model, model.mechanismOf[g * p + j], work, N, ws.scratch, ws.mean);
+      applyNoise(model, j, ws.mean, units.noise, j * N, N, work, j * N);
+    }
+    const out = ws.tmp;
+    if (lv < 0) {
+      if (causal) {
+        mechanismOutput(model, yMech, work, N, ws.scratch, ws.mean);
+        for (let u = 0; u < N; u++) out[u] = ws.mean[u] + units.noise[y * N + u];
+      } else for (let u = 0; u < N; u++) out[u] = V[y * N + u];
+    } else {
+      mechanismOutput(model, yMech, work, N, ws.scratch, ws.mean);
+      levelProbability(model, y, lv, ws.mean, sim.yLo, sim.yHi, N, out);
+    }
+    for (let r = 0; r < nr; r++) {
+      const base = a * sim.pool + sim.poolStart[r0 + r] + sim.graphOff[g * n + r0 + r] - rs[r];
+      for (let u = rs[r]; u < rs[r + 1]; u++) sim.outcome[base + u] = out[u];
+    }
+    for (let k = 0; k < aff.length; k++) work.set(V.subarray(aff[k] * N, (aff[k] + 1) * N), aff[k] * N);
+    work.set(V.subarray(t * N, (t + 1) * N), t * N);
+  }
+}
+
 function outcomeCode(model: CompiledModel, y: number, outcomeLevel: InterventionValue | undefined): number {
   if (outcomeLevel === undefined) {
     if (model.kinds[y] === KIND_CATEGORICAL) {
@@ -402,87 +483,6 @@ function applyArm(model: CompiledModel, arm: ResolvedArm, t: number, V: Float64A
       return;
     default:
       throw new RangeError(`unknown arm action ${arm.action}`);
-  }
-}
-
-/**
- * Per row: 1 if the row leaves the outcome out but gives a processed descendant of it in graph g
- * (then the outcome's drawn noise is weighted by evidence and must be used as drawn).
- */
-function outcomeInformed(model: CompiledModel, g: number, y: number, posted: PostedRows, process: Uint8Array): Uint8Array {
-  const n = posted.n;
-  const out = new Uint8Array(n);
-  const de = descendantMask(model, g, [y]);
-  for (let r = 0; r < n; r++) {
-    if (!Number.isNaN(posted.values[y * n + r])) continue;
-    for (let j = 0; j < model.p && out[r] === 0; j++) if (de[j] === 1 && process[j] === 1 && !Number.isNaN(posted.values[j * n + r])) out[r] = 1;
-  }
-  return out;
-}
-
-/**
- * The posterior interval [lo, hi) of the discrete outcome's own noise u per unit: the interval
- * of its given level under the factual parents; [0, 1) when the row does not give it and nothing
- * it gives depends on it (the probability is then averaged over u exactly); the drawn u itself
- * (lo = hi = u, a 0/1 outcome per draw) when the row leaves it out but gives evidence about it.
- */
-function outcomeIntervals(
-  model: CompiledModel,
-  m: number,
-  y: number,
-  posted: PostedRows,
-  informed: Uint8Array,
-  V: Float64Array,
-  noise: Float64Array,
-  rs: Int32Array,
-  N: number,
-  scratch: Float64Array,
-  mean: Float64Array,
-  lo: Float64Array,
-  hi: Float64Array,
-): void {
-  mechanismOutput(model, m, V, N, scratch, mean);
-  const n = posted.n;
-  const binary = model.kinds[y] !== KIND_CATEGORICAL;
-  const k = model.nLevels[y];
-  for (let r = 0; r < n; r++) {
-    const x = posted.values[y * n + r];
-    for (let u = rs[r]; u < rs[r + 1]; u++) {
-      if (Number.isNaN(x)) {
-        lo[u] = informed[r] === 1 ? noise[y * N + u] : 0;
-        hi[u] = informed[r] === 1 ? noise[y * N + u] : 1;
-      } else if (binary) {
-        lo[u] = x === 1 ? 0 : mean[u];
-        hi[u] = x === 1 ? mean[u] : 1;
-      } else {
-        let a = 0;
-        for (let c = 0; c < x; c++) a += mean[c * N + u];
-        lo[u] = a;
-        hi[u] = x === k - 1 ? 1 : a + mean[x * N + u];
-      }
-    }
-  }
-}
-
-/** P(outcome = lv) per unit: overlap of the level's u-interval under the arm with the posterior [lo, hi). */
-function levelProbability(model: CompiledModel, y: number, lv: number, mean: Float64Array, lo: Float64Array, hi: Float64Array, N: number, out: Float64Array): void {
-  const binary = model.kinds[y] !== KIND_CATEGORICAL;
-  const k = model.nLevels[y];
-  for (let u = 0; u < N; u++) {
-    let L: number;
-    let U: number;
-    if (binary) {
-      // Binary coupling: x = 1 ⇔ u < P(x = 1).
-      L = lv === 1 ? 0 : mean[u];
-      U = lv === 1 ? mean[u] : 1;
-    } else {
-      L = 0;
-      for (let c = 0; c < lv; c++) L += mean[c * N + u];
-      U = lv === k - 1 ? 1 : L + mean[lv * N + u];
-    }
-    const width = hi[u] - lo[u];
-    if (width > 1e-12) out[u] = Math.max(0, Math.min(U, hi[u]) - Math.max(L, lo[u])) / width;
-    else out[u] = lo[u] >= L && lo[u] < U ? 1 : 0;
   }
 }
 

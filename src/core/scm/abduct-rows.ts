@@ -21,6 +21,7 @@ import type { Rng } from '../random/rng.js';
 import {
   type CompiledModel,
   KIND_BINARY,
+  KIND_CATEGORICAL,
   KIND_CONTINUOUS,
   MECH_NOISE,
   MECH_PARENT_COUNT,
@@ -35,7 +36,7 @@ import {
 import { abductNoise } from './abduction.js';
 import { InterventionError, valueCode } from './intervention.js';
 import { applyNoise, kernelWidths, mechanismOutput } from './kernel.js';
-import { ancestorMask } from './model-access.js';
+import { ancestorMask, descendantMask } from './model-access.js';
 
 /** Most rows one request may post (a documented bound: keeps a what-if a bounded, interactive computation). */
 export const MAX_POSTED_ROWS = 1000;
@@ -128,6 +129,16 @@ export function encodeRows(model: CompiledModel, rows: ReadonlyArray<Readonly<Re
   const incomplete = new Uint8Array(n);
   for (let j = 0; j < p; j++) for (let r = 0; r < n; r++) if (Number.isNaN(values[j * n + r])) incomplete[r] = 1;
   return { n, values, incomplete };
+}
+
+/** Rows r0..r1−1 of posted rows, as their own PostedRows. */
+export function sliceRows(posted: PostedRows, r0: number, r1: number): PostedRows {
+  const n = posted.n;
+  const m = r1 - r0;
+  const p = posted.values.length / n;
+  const values = new Float64Array(p * m);
+  for (let j = 0; j < p; j++) values.set(posted.values.subarray(j * n + r0, j * n + r1), j * m);
+  return { n: m, values, incomplete: posted.incomplete.slice(r0, r1) };
 }
 
 /**
@@ -265,5 +276,90 @@ function addLikelihood(
       const off = pv[j * nr + r] * N;
       for (let u = rowStart[r]; u < end; u++) logWeight[u] += Math.log(Math.max(1e-300, mean[off + u]));
     }
+  }
+}
+
+/**
+ * Per row: 1 if the row leaves the outcome out but gives a processed descendant of it in graph g
+ * (then the outcome's drawn noise is weighted by evidence and must be used as drawn).
+ */
+function outcomeInformed(model: CompiledModel, g: number, y: number, posted: PostedRows, process: Uint8Array): Uint8Array {
+  const n = posted.n;
+  const out = new Uint8Array(n);
+  const de = descendantMask(model, g, [y]);
+  for (let r = 0; r < n; r++) {
+    if (!Number.isNaN(posted.values[y * n + r])) continue;
+    for (let j = 0; j < model.p && out[r] === 0; j++) if (de[j] === 1 && process[j] === 1 && !Number.isNaN(posted.values[j * n + r])) out[r] = 1;
+  }
+  return out;
+}
+
+/**
+ * The posterior interval [lo, hi) of the discrete outcome y's own noise u per unit, in graph g: the interval
+ * of its given level under the factual parents; [0, 1) when the row does not give it and nothing
+ * it gives depends on it (the probability is then averaged over u exactly); the drawn u itself
+ * (lo = hi = u, a 0/1 outcome per draw) when the row leaves it out but gives evidence about it.
+ */
+export function outcomeIntervals(
+  model: CompiledModel,
+  g: number,
+  y: number,
+  posted: PostedRows,
+  process: Uint8Array,
+  V: Float64Array,
+  noise: Float64Array,
+  rs: Int32Array,
+  N: number,
+  scratch: Float64Array,
+  mean: Float64Array,
+  lo: Float64Array,
+  hi: Float64Array,
+): void {
+  mechanismOutput(model, model.mechanismOf[g * model.p + y], V, N, scratch, mean);
+  const informed = outcomeInformed(model, g, y, posted, process);
+  const n = posted.n;
+  const binary = model.kinds[y] !== KIND_CATEGORICAL;
+  const k = model.nLevels[y];
+  for (let r = 0; r < n; r++) {
+    const x = posted.values[y * n + r];
+    for (let u = rs[r]; u < rs[r + 1]; u++) {
+      if (Number.isNaN(x)) {
+        lo[u] = informed[r] === 1 ? noise[y * N + u] : 0;
+        hi[u] = informed[r] === 1 ? noise[y * N + u] : 1;
+      } else if (binary) {
+        lo[u] = x === 1 ? 0 : mean[u];
+        hi[u] = x === 1 ? mean[u] : 1;
+      } else {
+        let a = 0;
+        for (let c = 0; c < x; c++) a += mean[c * N + u];
+        lo[u] = a;
+        hi[u] = x === k - 1 ? 1 : a + mean[x * N + u];
+      }
+    }
+  }
+}
+
+/**
+ * P(y = lv) per unit from y's mechanism output `mean` under an arm: the overlap of the level's
+ * u-interval with the posterior [lo, hi) of outcomeIntervals, over its width (an indicator when lo = hi).
+ */
+export function levelProbability(model: CompiledModel, y: number, lv: number, mean: Float64Array, lo: Float64Array, hi: Float64Array, N: number, out: Float64Array): void {
+  const binary = model.kinds[y] !== KIND_CATEGORICAL;
+  const k = model.nLevels[y];
+  for (let u = 0; u < N; u++) {
+    let L: number;
+    let U: number;
+    if (binary) {
+      // Binary coupling: x = 1 ⇔ u < P(x = 1).
+      L = lv === 1 ? 0 : mean[u];
+      U = lv === 1 ? mean[u] : 1;
+    } else {
+      L = 0;
+      for (let c = 0; c < lv; c++) L += mean[c * N + u];
+      U = lv === k - 1 ? 1 : L + mean[lv * N + u];
+    }
+    const width = hi[u] - lo[u];
+    if (width > 1e-12) out[u] = Math.max(0, Math.min(U, hi[u]) - Math.max(L, lo[u])) / width;
+    else out[u] = lo[u] >= L && lo[u] < U ? 1 : 0;
   }
 }

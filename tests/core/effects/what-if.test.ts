@@ -109,6 +109,19 @@ describe('what-if on a linear Gaussian model (fixed graph)', () => {
     expect(eff.upper - eff.lower).toBeLessThan(1e-9);
   });
 
+  it('a large request is simulated in chunks of rows; every row still gets its analytic interval', () => {
+    // 1000 rows × 1000 draws = 10^6 units over 4 variables: more than one chunk (CHUNK_VALUES = 2·10^6 values).
+    const rows = Array.from({ length: 1000 }, () => ({ x: 0.3, t: -0.4, m: 0.7 }));
+    const res = whatIf(medModel, rows, { treatment: 't', outcome: 'y', arms: [1], draws: 1000 }, Rng.create(12));
+    const z = normalQuantile(0.95);
+    for (const r of [0, 499, 999]) {
+      const w = res.units[r].predictions[0].upper - res.units[r].predictions[0].lower;
+      expect(w / (2 * z)).toBeGreaterThan(0.85);
+      expect(w / (2 * z)).toBeLessThan(1.15);
+    }
+    expect(() => whatIf(medModel, rows, { treatment: 't', outcome: 'y', arms: [1], draws: 5000 }, Rng.create(12))).toThrow(/more than 2000000/);
+  });
+
   it('a missing parent is drawn from its posterior given the row (likelihood weighting), not its prior', () => {
     // x not given, t = 2 given: x | t ~ N(0.5·2/1.25, 0.8) = N(0.8, 0.8). y | do(t=0) keeps m's abducted noise:
     // m_0 = m − 1.2·2, so E[y | do(t=0)] = 1 + 0.6·(m − 2.4) + 1.5·0.8 (the prior would give 1.5·0 instead).
