@@ -10,8 +10,9 @@ import { nextSubset, type Skeleton } from './pc-skeleton.js';
  *   than half it is not; exactly half leaves the triple ambiguous (no orientation).
  * - 'conservative' (Ramsey, Zhang & Spirtes 2006): a collider only when k lies in none of
  *   those separating sets, a non-collider only when it lies in all of them, else ambiguous.
- * When no subset separates i and j again, the separating set found by the skeleton phase
- * decides (k outside it → collider).
+ * Subsets are searched up to the largest size the skeleton phase tested. When no subset
+ * separates i and j again, the separating set found by the skeleton phase decides (k
+ * outside it → collider).
  */
 export type VStructureRule = 'majority' | 'conservative';
 
@@ -202,7 +203,7 @@ function decideTriple(
     const other = side === 0 ? j : i;
     const cand: number[] = [];
     for (let v = 0; v < n; v++) if (v !== other && adj[from * n + v] === 1) cand.push(v);
-    const top = Math.min(maxCondSize, cand.length);
+    const top = Math.min(maxCondSize, Math.max(0, skel.maxLevel), cand.length);
     for (let size = 0; size <= top; size++) {
       const idx = new Int32Array(Math.max(1, size));
       for (let t = 0; t < size; t++) idx[t] = t;
