@@ -201,10 +201,11 @@ describe('PC-stable', () => {
     const d = new Float64Array(n);
     const e = new Float64Array(n);
     for (let r = 0; r < n; r++) {
-      b[r] = 0.7 * a[r] + e1[r];
-      c[r] = 0.6 * a[r] + e2[r];
-      // opposite signs: explaining away adds to, never cancels, the b–c dependence through a
-      d[r] = 0.8 * b[r] - 0.8 * c[r] + e3[r];
+      // Coefficients chosen so no partial correlation nearly cancels (faithful by a margin):
+      // ρ(b, c | d) ≈ −0.45, ρ(b, c | a, d) = −0.5, ρ(a, d) = 0.5 (population values).
+      b[r] = 0.5 * a[r] + e1[r];
+      c[r] = 0.5 * a[r] + e2[r];
+      d[r] = b[r] + c[r] + e3[r];
       e[r] = 0.7 * d[r] + e4[r];
     }
     const cols = [cont('a', a), cont('b', b), cont('c', c), cont('d', d), cont('e', e)];
