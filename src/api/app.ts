@@ -79,6 +79,9 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
         scriptSrc: ["'self'"],
         styleSrc: ["'self'", "'unsafe-inline'"],
         imgSrc: ["'self'", 'data:'],
+        // The service often runs on plain HTTP inside a network; do not make browsers
+        // rewrite the /docs page's assets to https.
+        upgradeInsecureRequests: null,
       },
     },
   });

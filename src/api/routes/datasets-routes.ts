@@ -5,12 +5,13 @@
  */
 import multipart from '@fastify/multipart';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
-import type { z } from 'zod';
+import { z } from 'zod';
 import { createDatasetsService, type JsonTable } from '../../app/datasets/datasets-service.js';
 import type { IngestResult as IngestResultType } from '../../app/datasets/types.js';
 import type { Config } from '../../config.js';
 import { apiError } from '../../errors/catalogue.js';
 import type { Db } from '../../store/db.js';
+import { withProblems } from '../schemas/problem.js';
 import { installCsvBody } from '../plugins/csv-body.js';
 import type { AppMetrics } from '../plugins/metrics.js';
 import {
@@ -68,7 +69,7 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
           'text/csv: the body is streamed; give `name` (and optionally `kinds`/`schema`) in the query string. multipart/form-data: fields `name`, `kinds`, `schema` before a file part `file`. application/json: {name, columns, rows, schema?}. Column kinds are inferred unless declared; empty cells and NA are missing.',
         querystring: UploadQuery,
         body: uploadBody(CreateDatasetJson) as never,
-        response: { 201: IngestResult },
+        response: withProblems({ 201: IngestResult }),
       },
     },
     async (request, reply) => {
@@ -110,7 +111,7 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
         description: 'Same body forms as creating a dataset; the columns must be exactly the dataset\'s (in any order). Batches are numbered 1, 2, …',
         params: DatasetIdParams,
         body: uploadBody(AppendBatchJson) as never,
-        response: { 201: IngestResult },
+        response: withProblems({ 201: IngestResult }),
       },
     },
     async (request, reply) => {
@@ -135,7 +136,7 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
 
   app.get(
     '/datasets',
-    { config: { scope: 'read' }, schema: { tags: ['datasets'], summary: 'List the datasets of this workspace, newest first', response: { 200: DatasetList } } },
+    { config: { scope: 'read' }, schema: { tags: ['datasets'], summary: 'List the datasets of this workspace, newest first', response: withProblems({ 200: DatasetList }) } },
     async (request) => ({ datasets: await service.list(request.principal.workspaceId) }),
   );
 
@@ -143,7 +144,7 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
     '/datasets/:id',
     {
       config: { scope: 'read' },
-      schema: { tags: ['datasets'], summary: 'Show a dataset: schema, row count, batches, per-column statistics', params: DatasetIdParams, response: { 200: DatasetDetail } },
+      schema: { tags: ['datasets'], summary: 'Show a dataset: schema, row count, batches, per-column statistics', params: DatasetIdParams, response: withProblems({ 200: DatasetDetail }) },
     },
     async (request) => service.get(request.principal.workspaceId, request.params.id),
   );
@@ -152,11 +153,11 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
     '/datasets/:id',
     {
       config: { scope: 'write' },
-      schema: { tags: ['datasets'], summary: 'Delete a dataset and its rows', params: DatasetIdParams },
+      schema: { tags: ['datasets'], summary: 'Delete a dataset and its rows', params: DatasetIdParams, response: withProblems({ 204: z.null().describe('Deleted') }) },
     },
     async (request, reply) => {
       await service.remove(request.principal.workspaceId, request.params.id);
-      return reply.code(204).send();
+      return reply.code(204).send(null);
     },
   );
 };

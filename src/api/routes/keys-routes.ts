@@ -5,12 +5,13 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { createKey, listKeys, revokeKey, type KeyDeps } from '../../app/keys/key-use-cases.js';
 import { apiError } from '../../errors/catalogue.js';
+import { withProblems } from '../schemas/problem.js';
 import { CreateKeyBody, CreatedKey, KeyIdParams, KeyList, KeyView, WorkspaceView } from '../schemas/keys.js';
 
 export const keysRoutes: FastifyPluginAsyncZod<{ deps: KeyDeps }> = async (app, { deps }) => {
   app.get(
     '/keys',
-    { config: { scope: 'admin' }, schema: { tags: ['keys'], summary: 'List the keys of this workspace (prefixes only)', response: { 200: KeyList } } },
+    { config: { scope: 'admin' }, schema: { tags: ['keys'], summary: 'List the keys of this workspace (prefixes only)', response: withProblems({ 200: KeyList }) } },
     async (request) => ({ keys: await listKeys(deps, request.principal.workspaceId) }),
   );
 
@@ -18,7 +19,7 @@ export const keysRoutes: FastifyPluginAsyncZod<{ deps: KeyDeps }> = async (app, 
     '/keys',
     {
       config: { scope: 'admin' },
-      schema: { tags: ['keys'], summary: 'Create a key; the response holds the key once', body: CreateKeyBody, response: { 201: CreatedKey } },
+      schema: { tags: ['keys'], summary: 'Create a key; the response holds the key once', body: CreateKeyBody, response: withProblems({ 201: CreatedKey }) },
     },
     async (request, reply) => {
       const created = await createKey(deps, request.principal.workspaceId, request.body);
@@ -31,14 +32,14 @@ export const keysRoutes: FastifyPluginAsyncZod<{ deps: KeyDeps }> = async (app, 
     '/keys/:id',
     {
       config: { scope: 'admin' },
-      schema: { tags: ['keys'], summary: 'Revoke a key (it stops working at once)', params: KeyIdParams, response: { 200: KeyView } },
+      schema: { tags: ['keys'], summary: 'Revoke a key (it stops working at once)', params: KeyIdParams, response: withProblems({ 200: KeyView }) },
     },
     async (request) => revokeKey(deps, request.principal.workspaceId, request.params.id),
   );
 
   app.get(
     '/workspace',
-    { config: { scope: 'read' }, schema: { tags: ['keys'], summary: 'The workspace of the calling key', response: { 200: WorkspaceView } } },
+    { config: { scope: 'read' }, schema: { tags: ['keys'], summary: 'The workspace of the calling key', response: withProblems({ 200: WorkspaceView }) } },
     async (request) => {
       const ws = await deps.workspaces.findById(request.principal.workspaceId);
       if (!ws) throw apiError('ERR_AUTH_INVALID_KEY');
