@@ -95,18 +95,24 @@ describe('learn(frame, knowledge, options)', () => {
     expect(res.notes.some((n) => n === 'auto: chose direct-lingam')).toBe(true);
   });
 
-  it('property: no learner ever outputs a forbidden edge (random forbidden sets and tiers)', () => {
+  it('property: no learner ever outputs a forbidden edge or drops a required one (random knowledge)', () => {
     const f = data(300, 7);
     const rng = Rng.create(8);
     for (let trial = 0; trial < 6; trial++) {
-      const forbidden: Array<[string, string]> = [];
-      for (const x of NAMES) for (const y of NAMES) if (x !== y && rng.uniform() < 0.3) forbidden.push([x, y]);
       const perm = [...NAMES];
       rng.shuffle(perm);
-      const knowledge: Knowledge = trial % 2 === 0 ? { forbidden } : { forbidden, tiers: [perm.slice(0, 2), perm.slice(2, 4)] };
+      const tiers = trial % 2 === 0 ? undefined : [perm.slice(0, 2), perm.slice(2, 4)];
+      const tier = (x: string) => (tiers ? tiers.findIndex((t) => t.includes(x)) : -1);
+      // One required edge, never against the tiers; random forbidden edges, never the required one.
+      let req: [string, string] = [perm[0], perm[4]];
+      if (tier(req[0]) >= 0 && tier(req[1]) >= 0 && tier(req[0]) > tier(req[1])) req = [req[1], req[0]];
+      const forbidden: Array<[string, string]> = [];
+      for (const x of NAMES) for (const y of NAMES) if (x !== y && !(x === req[0] && y === req[1]) && rng.uniform() < 0.3) forbidden.push([x, y]);
+      const knowledge: Knowledge = tiers ? { forbidden, tiers, required: [req] } : { forbidden, required: [req] };
       // The forbidden marks computed here, independently of compileKnowledge.
       const bad = new Set(forbidden.map(([x, y]) => `${x}→${y}`));
-      if (knowledge.tiers) for (const x of knowledge.tiers[1]) for (const y of knowledge.tiers[0]) bad.add(`${x}→${y}`);
+      if (tiers) for (const x of tiers[1]) for (const y of tiers[0]) bad.add(`${x}→${y}`);
+      const [ri, rj] = [NAMES.indexOf(req[0]), NAMES.indexOf(req[1])];
       for (const learner of learners) {
         const res = learn(f, knowledge, opts(learner, trial));
         for (let i = 0; i < 5; i++) {
@@ -114,6 +120,7 @@ describe('learn(frame, knowledge, options)', () => {
             if (res.graph.adj[i * 5 + j] === 1) expect(bad.has(`${NAMES[i]}→${NAMES[j]}`), `${learner} ${NAMES[i]}→${NAMES[j]}`).toBe(false);
           }
         }
+        expect([res.graph.adj[ri * 5 + rj], res.graph.adj[rj * 5 + ri]], `${learner} required ${req.join('→')}`).toEqual([1, 0]);
       }
     }
   });
