@@ -55,7 +55,7 @@ export interface EffectEstimate extends ContrastSummary {
 /** Method note shared by estimates. */
 export const INTERVAL_METHOD =
   'Per graph: mean of per-unit counterfactual differences over the reference rows (common random numbers); ' +
-  'standard error = max(Monte Carlo se of the unit differences, cross-check influence-function se); ' +
+  'standard error = sqrt(max(Monte Carlo se of the unit differences, cross-check influence-function se)² + (simulation − cross-check)²); ' +
   'interval: central quantiles of the weight mixture of per-graph normal approximations.';
 
 /** ATE (or CATE for `segment`) of `arm` against `reference`. */

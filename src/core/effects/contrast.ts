@@ -31,7 +31,7 @@ export interface CrossCheckEstimate {
   readonly se: number;
   readonly lower: number;
   readonly upper: number;
-  /** True when this interval and the simulation's interval for the graph do not overlap. */
+  /** True when this interval and the simulation's sampling-error interval (before the specification term) do not overlap. */
   readonly disagrees: boolean;
 }
 
@@ -130,12 +130,20 @@ export function contrast(
         for (let k = 0; k < sc.n; k++) subMask[k] = mask[sc.rows[k]];
       }
       const c = scoreContrast(sc, i, j, level, sc.weights, subMask);
-      if (Number.isFinite(c.se)) seG = Math.max(seG, c.se);
-      cc = { method: sc.method, estimate: c.estimate, se: c.se, lower: c.lower, upper: c.upper, disagrees: false };
+      let disagrees = false;
+      if (Number.isFinite(c.se)) {
+        const sampling = Math.max(seG, c.se);
+        // Flag: the sampling-error intervals of the two estimates do not overlap.
+        disagrees = c.upper < m - z * sampling || c.lower > m + z * sampling;
+        // Specification term: both estimate the same contrast under this graph; a gap between
+        // them points at misspecified mechanisms, so it widens the error.
+        const gap = m - c.estimate;
+        seG = Math.sqrt(sampling * sampling + gap * gap);
+      }
+      cc = { method: sc.method, estimate: c.estimate, se: c.se, lower: c.lower, upper: c.upper, disagrees };
     }
     const lo = m - z * seG;
     const hi = m + z * seG;
-    if (cc) cc = { ...cc, disagrees: cc.upper < lo || cc.lower > hi };
     mu[g] = causal ? m : 0;
     se[g] = seG;
     mA += graphWeights[g] * meanI;
