@@ -17,7 +17,12 @@ export interface LearnOptions {
   readonly learner: LearnerName;
   /** Seed of the learner's random generator. Default 0. Same seed, same data → same graph. */
   readonly seed?: number;
-  /** How missing cells are filled before learning (frame/impute.ts). Default: its default scheme. */
+  /**
+   * How missing cells are handled before learning (frame/impute.ts): 'mean-mode' (default;
+   * column mean for continuous cells, most frequent code for binary/categorical, every row
+   * kept; shrinks dependencies towards zero in proportion to the missing share) or
+   * 'drop-rows' (listwise deletion). The result's `missing` reports the rows and cells affected.
+   */
   readonly missing?: ImputeScheme;
   /**
    * Standardise continuous columns to mean 0, sd 1 before learning. Default true: no learner

@@ -21,6 +21,12 @@ import { pcSkeleton } from './pc-skeleton.js';
  * from the earlier to the later tier) is oriented the allowed way before the v-structures,
  * v-structures never override it, and it is re-imposed after Meek's rules (which are sound
  * with background knowledge, Meek 1995), repeating until nothing changes.
+ *
+ * Test errors can make v-structures and Meek's rules close a directed cycle, which no DAG
+ * explains. A collider whose arms would close one with stronger colliders is skipped; edges
+ * Meek's rules still put on a cycle are left undirected (never one the knowledge orients).
+ * The notes count both. With a perfect test neither happens (pc.test.ts checks that PC
+ * with a d-separation oracle returns exactly the CPDAG of the true DAG).
  */
 export interface PcOptions {
   /**
