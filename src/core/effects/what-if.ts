@@ -283,28 +283,33 @@ export function whatIf(
   const diff = new Float64Array(pool);
   const units: WhatIfUnit[] = [];
   const lowEss: number[] = [];
+  const res = new Float64Array(3);
+  /** Per-graph summaries of row r's block of vals (pooled index + off). */
+  const parts = (vals: Float64Array, off: number, r: number): WhatIfGraphPart[] => {
+    const out: WhatIfGraphPart[] = [];
+    for (let g = 0; g < G; g++) {
+      const wg = model.graphWeights[g];
+      if (!(wg > 0)) continue;
+      const o = poolStart[r] + graphOff[g * n + r];
+      summarise(vals, off + o, weight, o, drawsOf[g * n + r], level, keys, kw, res);
+      out.push({ graph: g, weight: wg, causalPath: causal[g] === 1, estimate: res[0], lower: res[1], upper: res[2] });
+    }
+    return out;
+  };
   for (let r = 0; r < n; r++) {
     const s0 = poolStart[r];
     const len = poolStart[r + 1] - s0;
-    const parts = (vals: Float64Array, off: number): WhatIfGraphPart[] => {
-      const out: WhatIfGraphPart[] = [];
-      for (let g = 0; g < G; g++) {
-        const wg = model.graphWeights[g];
-        if (!(wg > 0)) continue;
-        const o = off + s0 + graphOff[g * n + r];
-        out.push({ graph: g, weight: wg, causalPath: causal[g] === 1, ...summarise(vals, o, weight, s0 + graphOff[g * n + r], drawsOf[g * n + r], level, keys, kw) });
-      }
-      return out;
-    };
     const predictions: WhatIfPrediction[] = [];
     for (let a = 0; a < A; a++) {
-      predictions.push({ arm: labels[a], ...summarise(outcome, a * pool + s0, weight, s0, len, level, keys, kw), perGraph: parts(outcome, a * pool) });
+      summarise(outcome, a * pool + s0, weight, s0, len, level, keys, kw, res);
+      predictions.push({ arm: labels[a], estimate: res[0], lower: res[1], upper: res[2], perGraph: parts(outcome, a * pool, r) });
     }
     const effects: WhatIfEffect[] = [];
     for (let a = 0; a < A; a++) {
       if (a === ref) continue;
       for (let k = s0; k < s0 + len; k++) diff[k] = outcome[a * pool + k] - outcome[ref * pool + k];
-      effects.push({ arm: labels[a], reference: labels[ref], ...summarise(diff, s0, weight, s0, len, level, keys, kw), perGraph: parts(diff, 0) });
+      summarise(diff, s0, weight, s0, len, level, keys, kw, res);
+      effects.push({ arm: labels[a], reference: labels[ref], estimate: res[0], lower: res[1], upper: res[2], perGraph: parts(diff, 0, r) });
     }
     const used: string[] = [];
     const missing: string[] = [];
@@ -393,8 +398,22 @@ function simulateChunk(
   if (lv >= 0) outcomeIntervals(model, g, y, posted, process, V, units.noise, rs, N, ws.scratch, ws.mean, sim.yLo, sim.yHi);
   // Likelihood weights, normalised within (row, graph) to sum to w_g.
   for (let r = 0; r < nr; r++) {
+    const d = rs[r + 1] - rs[r];
+    const R = r0 + r;
+    const base = sim.poolStart[R] + sim.graphOff[g * n + R] - rs[r];
     let mx = -Infinity;
-    for (let u = rs[r]; u < rs[r + 1]; u++) if (units.logWeight[u] > mx) mx = units.logWeight[u];
+    let mn = Infinity;
+    for (let u = rs[r]; u < rs[r + 1]; u++) {
+      const l = units.logWeight[u];
+      if (l > mx) mx = l;
+      if (l < mn) mn = l;
+    }
+    if (mx === mn) {
+      // Nothing weights the draws (no given value depends on a drawn one): equal weights.
+      for (let u = rs[r]; u < rs[r + 1]; u++) sim.weight[base + u] = wg / d;
+      if (d > 1 && d < sim.ess[R]) sim.ess[R] = d;
+      continue;
+    }
     let s = 0;
     let s2 = 0;
     for (let u = rs[r]; u < rs[r + 1]; u++) {
@@ -403,14 +422,9 @@ function simulateChunk(
       s += e;
       s2 += e * e;
     }
-    const d = rs[r + 1] - rs[r];
-    const R = r0 + r;
-    if (d > 1) {
-      const e = (s * s) / s2;
-      if (e < sim.ess[R]) sim.ess[R] = e;
-      if (e / d < sim.essShare[R]) sim.essShare[R] = e / d;
-    }
-    const base = sim.poolStart[R] + sim.graphOff[g * n + R] - rs[r];
+    const e = (s * s) / s2;
+    if (e < sim.ess[R]) sim.ess[R] = e;
+    if (e / d < sim.essShare[R]) sim.essShare[R] = e / d;
     for (let u = rs[r]; u < rs[r + 1]; u++) sim.weight[base + u] = (wg * ws.tmp[u]) / s;
   }
   const work = sim.work;
@@ -486,8 +500,8 @@ function applyArm(model: CompiledModel, arm: ResolvedArm, t: number, V: Float64A
   }
 }
 
-/** Weighted mean and central `level` quantiles of vals[vOff ..+len] with weights w[wOff ..+len]. */
-function summarise(vals: Float64Array, vOff: number, w: Float64Array, wOff: number, len: number, level: number, keys: Float64Array, kw: Float64Array): WhatIfSummary {
+/** Weighted mean and central `level` quantiles of vals[vOff ..+len] (weights w[wOff ..+len]) into res = [estimate, lower, upper]. */
+function summarise(vals: Float64Array, vOff: number, w: Float64Array, wOff: number, len: number, level: number, keys: Float64Array, kw: Float64Array, res: Float64Array): void {
   let sw = 0;
   let s = 0;
   let min = Infinity;
@@ -505,11 +519,14 @@ function summarise(vals: Float64Array, vOff: number, w: Float64Array, wOff: numb
   // All draws equal up to rounding (a determined answer): a point, without rounding noise in the bounds.
   if (max - min <= 1e-12 * Math.max(1, Math.abs(estimate))) {
     const e = Math.min(max, Math.max(min, estimate));
-    return { estimate: e, lower: e, upper: e };
+    res[0] = res[1] = res[2] = e;
+    return;
   }
   sortPairs(keys, kw, 0, len - 1);
   const alpha = (1 - level) / 2;
-  return { estimate, lower: weightedQuantile(keys, kw, len, alpha * sw), upper: weightedQuantile(keys, kw, len, (1 - alpha) * sw) };
+  res[0] = estimate;
+  res[1] = weightedQuantile(keys, kw, len, alpha * sw);
+  res[2] = weightedQuantile(keys, kw, len, (1 - alpha) * sw);
 }
 
 /** Smallest sorted key whose cumulative weight reaches `target`. */

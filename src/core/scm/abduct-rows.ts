@@ -199,7 +199,8 @@ export function abductRows(
     const m = model.mechanismOf[g * p + j];
     const col = j * N;
     mechanismOutput(model, m, values, N, scratch, mean);
-    abductNoise(model, j, mean, values, col, N, rng.stream(p + j), noise, col);
+    // Continuous abduction draws nothing: skip creating its stream.
+    abductNoise(model, j, mean, values, col, N, model.kinds[j] === KIND_CONTINUOUS ? rng : rng.stream(p + j), noise, col);
     let anyMissing = false;
     for (let r = 0; r < nr && !anyMissing; r++) anyMissing = Number.isNaN(pv[j * nr + r]);
     if (anyMissing) {
