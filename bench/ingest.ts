@@ -106,6 +106,14 @@ async function rssMb(pid: number, field: 'VmHWM' | 'VmRSS'): Promise<number> {
   return m ? Math.round(Number(m[1]) / 1024) : NaN;
 }
 
+/** CPU seconds (user + system) a process has used, from /proc/<pid>/stat. */
+async function cpuSeconds(pid: number): Promise<number> {
+  const stat = await readFile(`/proc/${pid}/stat`, 'utf8');
+  const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+  // utime and stime are fields 14 and 15 of stat(5), i.e. 12 and 13 after "pid (comm) ".
+  return (Number(fields[11]) + Number(fields[12])) / 100;
+}
+
 function waitFor(proc: ChildProcess, marker: RegExp, timeoutMs: number): Promise<string> {
   return new Promise((resolve, reject) => {
     let seen = '';
@@ -133,6 +141,11 @@ interface Figures {
   peak_rss_mb: number;
   /** Resident set of the ready, idle server just before the upload. */
   idle_rss_mb: number;
+  /**
+   * CPU seconds the server process spent on the upload (parse, validate, encode, send). On a
+   * shared machine, rows / this is what one free core could sustain on the Node side.
+   */
+  server_cpu_s: number;
   rows: number;
   bytes: number;
   seconds: number;
@@ -166,19 +179,22 @@ async function runDirect(backend: string, rows: number, file: string, bytes: num
   });
   await waitFor(proc, /READY\n/, 300_000);
   const idle = await rssMb(proc.pid!, 'VmRSS');
+  const cpu0 = await cpuSeconds(proc.pid!);
   const done = waitFor(proc, /\{"rows":\d+\}\n/, 3_600_000);
   const t0 = performance.now();
   await sendFile(file, proc.stdin!);
   const result = JSON.parse(await done) as { rows: number };
   const seconds = (performance.now() - t0) / 1000;
   const peak = await rssMb(proc.pid!, 'VmHWM');
+  const cpu = (await cpuSeconds(proc.pid!)) - cpu0;
   await new Promise((r) => proc.once('exit', r));
   if (result.rows !== rows) throw new Error(`stored ${result.rows} rows of ${rows}`);
-  return figures(rows, bytes, seconds, peak, idle, 'direct');
+  return figures(rows, bytes, seconds, peak, idle, cpu, 'direct');
 }
 
-function figures(rows: number, bytes: number, seconds: number, peak: number, idle: number, path: Figures['path']): Figures {
+function figures(rows: number, bytes: number, seconds: number, peak: number, idle: number, cpu: number, path: Figures['path']): Figures {
   return {
+    server_cpu_s: +cpu.toFixed(2),
     rows_per_s: Math.round(rows / seconds),
     mb_per_s: +(bytes / 1e6 / seconds).toFixed(1),
     peak_rss_mb: peak,
@@ -273,6 +289,7 @@ async function runHttp(backend: string, rows: number, file: string, bytes: numbe
       return null;
     }
     const idle = await rssMb(proc.pid!, 'VmRSS');
+    const cpu0 = await cpuSeconds(proc.pid!);
     const t0 = performance.now();
     const res = await post(port, key, path, (req) => sendFile(file, req));
     const seconds = (performance.now() - t0) / 1000;
@@ -280,7 +297,8 @@ async function runHttp(backend: string, rows: number, file: string, bytes: numbe
     const stored = (JSON.parse(res.text) as { dataset: { rowCount: number } }).dataset.rowCount;
     if (stored !== rows) throw new Error(`stored ${stored} rows of ${rows}`);
     const peak = await rssMb(proc.pid!, 'VmHWM');
-    return figures(rows, bytes, seconds, peak, idle, 'http');
+    const cpu = (await cpuSeconds(proc.pid!)) - cpu0;
+    return figures(rows, bytes, seconds, peak, idle, cpu, 'http');
   } finally {
     await stopServer(proc);
     await rm(dataDir, { recursive: true, force: true });
@@ -325,7 +343,7 @@ async function main(): Promise<void> {
       results[backend] = f;
       console.log(
         `${backend.padEnd(8)} ${f.path.padEnd(6)} ${rows} rows in ${f.seconds} s: ${f.rows_per_s.toLocaleString('en')} rows/s, ` +
-          `${f.mb_per_s} MB/s, server peak RSS ${f.peak_rss_mb} MB (idle before upload ${f.idle_rss_mb} MB)`,
+          `${f.mb_per_s} MB/s, server peak RSS ${f.peak_rss_mb} MB (idle before upload ${f.idle_rss_mb} MB), server CPU ${f.server_cpu_s} s`,
       );
     }
   } finally {
@@ -337,9 +355,11 @@ async function main(): Promise<void> {
     console.log('wrote bench/results/ingest.json');
   }
   console.log(`\nload average at the end: ${loadavg().map((x) => x.toFixed(1)).join(' ')} on ${cpus().length} CPUs`);
-  console.log('| back end | path | rows | rows/s | MB/s | server peak RSS (MB) | idle RSS (MB) |\n|---|---|---|---|---|---|---|');
+  console.log('| back end | path | rows | rows/s | MB/s | server peak RSS (MB) | idle RSS (MB) | server CPU (s) |\n|---|---|---|---|---|---|---|---|');
   for (const [b, f] of Object.entries(results)) {
-    console.log(`| ${b} | ${f.path} | ${f.rows.toLocaleString('en')} | ${f.rows_per_s.toLocaleString('en')} | ${f.mb_per_s} | ${f.peak_rss_mb} | ${f.idle_rss_mb} |`);
+    console.log(
+      `| ${b} | ${f.path} | ${f.rows.toLocaleString('en')} | ${f.rows_per_s.toLocaleString('en')} | ${f.mb_per_s} | ${f.peak_rss_mb} | ${f.idle_rss_mb} | ${f.server_cpu_s} |`,
+    );
   }
 }
 

@@ -16,7 +16,7 @@ export interface OpenDbOptions {
   schema?: string;
   /** pg pool size. Default 10. */
   poolSize?: number;
-  /** PGlite only: CSV bytes per COPY statement of a bulk load (tests lower it). Default 8 MiB. */
+  /** PGlite only: CSV bytes per COPY statement of a bulk load (tests lower it). Default 256 KiB. */
   copyChunkBytes?: number;
 }
 
