@@ -191,6 +191,22 @@ describe.each(backends())('bad input on %s', (backend) => {
       status: 400,
       type: 'ERR_REQUEST_MALFORMED_JSON',
     },
+    {
+      name: 'an empty JSON body',
+      request: () => ({ method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': 'application/json' }, payload: '' }),
+      status: 400,
+      type: 'ERR_REQUEST_EMPTY_BODY',
+    },
+    {
+      name: 'a multipart upload without a file part',
+      request: () => {
+        const boundary = '----fulcrumtestboundary';
+        const payload = `--${boundary}\r\nContent-Disposition: form-data; name="name"\r\n\r\nno-file\r\n--${boundary}--\r\n`;
+        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': `multipart/form-data; boundary=${boundary}` }, payload };
+      },
+      status: 400,
+      type: 'ERR_REQUEST_MULTIPART_NO_FILE',
+    },
     { name: 'a CSV upload without a name', request: csv('a\n1\n', 'kinds=a:continuous'), status: 400, type: 'ERR_REQUEST_VALIDATION', mentions: ['"name"'] },
     { name: 'a kinds parameter with an unknown kind', request: csv('a\n1\n', 'name=x&kinds=a:ordinal'), status: 400, type: 'ERR_REQUEST_VALIDATION', mentions: ['"kinds"'] },
     {

@@ -39,7 +39,7 @@ export const keysRoutes: FastifyPluginAsyncZod<{ deps: KeyDeps }> = async (app, 
 
   app.get(
     '/workspace',
-    { config: { scope: 'read' }, schema: { tags: ['keys'], summary: 'The workspace of the calling key', response: withProblems({ 200: WorkspaceView }) } },
+    { config: { scope: 'read' }, schema: { tags: ['workspace'], summary: 'The workspace of the calling key', response: withProblems({ 200: WorkspaceView }) } },
     async (request) => {
       const ws = await deps.workspaces.findById(request.principal.workspaceId);
       if (!ws) throw apiError('ERR_AUTH_INVALID_KEY');
