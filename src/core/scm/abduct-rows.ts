@@ -16,6 +16,12 @@
  * a sample of the missing values' posterior given the row (graph weights are not updated by the
  * row). Continuous likelihoods use the mechanism's Gaussian σ (also for empirical noise, an
  * approximation); discrete ones P(x = observed | parents).
+ * Draws come from streams of `rng` per node, in row order within a call, so a row's draws depend
+ * on the seed and on the rows posted before it in the same chunk (deterministic for a request).
+ *
+ * For a discrete outcome, outcomeIntervals/levelProbability give the probability of a level per
+ * unit without drawing the outcome's own noise where its posterior is known in closed form (an
+ * interval of u), so probabilities are smooth in the arm and a given outcome is reproduced.
  */
 import type { Rng } from '../random/rng.js';
 import {

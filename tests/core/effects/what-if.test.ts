@@ -87,6 +87,9 @@ describe('what-if on a linear Gaussian model (fixed graph)', () => {
     const withM = whatIf(medModel, [{ x: 0.3, t: -0.4, m: 0.7 }], q, Rng.create(4)).units[0];
     const withoutM = whatIf(medModel, [{ x: 0.3, t: -0.4 }], q, Rng.create(4)).units[0];
     expect(withM.missing).toEqual(['y']);
+    // Nothing given depends on the drawn noise of y: the draws are equally weighted.
+    expect(withM.draws).toBe(4000);
+    expect(withM.effectiveDraws).toBeCloseTo(4000, 6);
     expect(withoutM.missing).toEqual(['m', 'y']);
     const z = normalQuantile(0.95);
     // m given: y | do(t=1) = f(x, 1, m_1) + e_y with m_1 = m + β_tm(1 − t): width 2·z·σ_y (σ_y = 1).
