@@ -46,13 +46,12 @@ interface Encoded {
   readonly levels: number;
 }
 
-/** Levels of a discrete column: labels when given, else max code + 1 (at least 2). */
+/** Levels of a discrete column: the larger of its label count and max code + 1 (at least 2). */
 export function levelCount(c: Column): number {
   if (c.kind === 'continuous') return 0;
-  if (c.levels && c.levels.length > 0) return Math.max(2, c.levels.length);
   let max = 1;
   for (let r = 0; r < c.values.length; r++) if (c.values[r] > max) max = c.values[r];
-  return max + 1;
+  return Math.max(max + 1, c.levels?.length ?? 0);
 }
 
 function encode(c: Column, n: number): Encoded {
@@ -89,7 +88,7 @@ export function createMixedCiTest(frame: Frame): MixedCiTest {
     return { rows: n, cols: p, data };
   };
 
-  /** Log-likelihood (or, for a continuous target, n·log RSS) of target t regressed on vars. */
+  /** Maximised log-likelihood of target t regressed on vars (for a continuous target: the RSS). */
   const fit = (t: number, vars: readonly number[]): number => {
     const col = cols[t];
     const y = col.values;
