@@ -11,6 +11,7 @@ export {
   whatIf,
   DEFAULT_WHATIF_DRAWS,
   MAX_POSTED_ROWS,
+  MAX_WHATIF_UNITS,
   MIN_GRAPH_DRAWS,
   WHATIF_METHOD,
   type WhatIfEffect,
