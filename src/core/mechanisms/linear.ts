@@ -30,24 +30,3 @@ export function fitLinear(x: Matrix, y: Float64Array, opts: ResolvedMechanismOpt
     nFit: x.rows,
   };
 }
-
-/** Held-out mean squared error of a linear fit on `train` rows, scored on `valid` rows. */
-export function linearHeldOutMse(x: Matrix, y: Float64Array, train: Int32Array, valid: Int32Array, ridge: number): number {
-  const p = x.cols;
-  const xt = new Float64Array(train.length * p);
-  const yt = new Float64Array(train.length);
-  for (let r = 0; r < train.length; r++) {
-    xt.set(x.data.subarray(train[r] * p, train[r] * p + p), r * p);
-    yt[r] = y[train[r]];
-  }
-  const fit = lstsq({ rows: train.length, cols: p, data: xt }, yt, { ridge, intercept: true });
-  let ss = 0;
-  for (let r = 0; r < valid.length; r++) {
-    const i = valid[r];
-    let f = fit.intercept;
-    for (let j = 0; j < p; j++) f += fit.coef[j] * x.data[i * p + j];
-    const e = y[i] - f;
-    ss += e * e;
-  }
-  return ss / Math.max(1, valid.length);
-}
