@@ -8,7 +8,17 @@ import type { Config } from '../config.js';
 
 type LoggerOptions = Exclude<FastifyServerOptions['logger'], boolean | undefined>;
 
-/** Logger options for a config; `pretty` uses pino-pretty (a dev dependency) on a terminal outside production. */
+/** True when pino-pretty (a dev dependency) is installed. */
+function prettyInstalled(): boolean {
+  try {
+    import.meta.resolve('pino-pretty');
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/** Logger options for a config; `pretty` uses pino-pretty (when installed) on a terminal outside production. */
 export function loggerOptions(config: Config, pretty = false): LoggerOptions {
   return {
     level: config.LOG_LEVEL,
@@ -25,7 +35,7 @@ export function loggerOptions(config: Config, pretty = false): LoggerOptions {
         return { statusCode: res.statusCode };
       },
     },
-    ...(pretty && config.NODE_ENV !== 'production'
+    ...(pretty && config.NODE_ENV !== 'production' && prettyInstalled()
       ? { transport: { target: 'pino-pretty', options: { translateTime: 'SYS:HH:MM:ss', ignore: 'pid,hostname' } } }
       : {}),
   } as LoggerOptions;

@@ -43,7 +43,3 @@ export function installAuth(v1: FastifyInstance, keys: KeysRepository): void {
   });
 }
 
-/** The principal of an authenticated request (narrowing helper for route handlers). */
-export function principalOf(request: FastifyRequest): Principal {
-  return request.principal;
-}

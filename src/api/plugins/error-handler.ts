@@ -95,6 +95,9 @@ export function installErrorHandler(app: FastifyInstance, opts: ErrorHandlerOpti
     }
     const problem = makeProblem(err.code, err.status, err.message, pathOf(request), request.id, err.detail);
     if (err.status === 401) reply.header('www-authenticate', 'Bearer');
+    // A refused upload stops reading mid-body: close the connection rather than leave unread
+    // bytes on a keep-alive socket.
+    if (!request.raw.complete) reply.header('connection', 'close');
     return reply.code(err.status).type(PROBLEM_CONTENT_TYPE).send(JSON.stringify(problem));
   });
 
