@@ -7,7 +7,8 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { QueriesService } from '../../app/queries/queries-service.js';
 import type { EffectQuery } from '../../core/effects/ate.js';
 import type { UpliftQuery } from '../../core/effects/uplift.js';
-import { Answer, EffectBody, ModelIdParams, UpliftBody } from '../schemas/effects.js';
+import { Answer, EffectBody, ModelIdParams, UpliftBody, WhatIfBody } from '../schemas/effects.js';
+import type { WhatIfQuery } from '../../core/effects/what-if.js';
 
 export interface EffectsRouteOptions {
   queries: QueriesService;
@@ -51,6 +52,26 @@ export const effectsRoutes: FastifyPluginAsyncZod<EffectsRouteOptions> = async (
     async (request) => {
       const { version, ...q } = request.body;
       return queries.uplift(request.principal.workspaceId, request.params.id, q as UpliftQuery, version);
+    },
+  );
+
+  app.post(
+    '/models/:id/what-if',
+    {
+      config: { scope: 'read' },
+      schema: {
+        tags,
+        summary: 'What-if for given units: each posted row’s predicted outcome under each arm, and the effects against the reference arm',
+        description:
+          'Values a row gives are kept (pre-treatment) or used to infer its unit-specific noise; missing or null values are drawn from the model given what the row does say. At most 1000 rows.',
+        params: ModelIdParams,
+        body: WhatIfBody,
+        response: { 200: Answer },
+      },
+    },
+    async (request) => {
+      const { version, rows, crossCheck: _unused, ...q } = request.body;
+      return queries.whatIf(request.principal.workspaceId, request.params.id, rows, q as WhatIfQuery, version);
     },
   );
 };

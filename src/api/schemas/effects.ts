@@ -69,6 +69,8 @@ export const WhatIfBody = z
   .object({
     ...Common,
     arms: z.array(Arm).min(1).max(10),
+    reference: Arm.optional().describe('Arm the effects are taken against (default the first arm).'),
+    draws: z.number().int().min(10).max(10_000).optional().describe('Draws per row for values the row does not give (default 200).'),
     rows: z.array(z.record(Variable, z.union([z.number(), z.string().max(200), z.null()]))).min(1).max(1000),
   })
   .strict();

@@ -13,6 +13,8 @@ import { estimateEffect, type EffectEstimate, type EffectQuery } from '../../cor
 import { EffectCache } from '../../core/effects/effect-cache.js';
 import { resolveSegment, expandSegments, SegmentError, type Segment, type SegmentBy } from '../../core/effects/segments.js';
 import { upliftTable, type UpliftQuery, type UpliftTable } from '../../core/effects/uplift.js';
+import { whatIf, type WhatIfQuery, type WhatIfResult } from '../../core/effects/what-if.js';
+import { Rng } from '../../core/random/rng.js';
 import { KIND_CONTINUOUS, type CompiledModel } from '../../core/scm/compiled-model.js';
 import { InterventionError } from '../../core/scm/intervention.js';
 import { deserialise } from '../../core/scm/serialise.js';
@@ -82,6 +84,22 @@ export function createQueriesService(models: ModelsService, options: QueriesOpti
       checkQuery(cache.model, q.treatment, q.outcome, [...q.arms, q.reference]);
       checkSegments(cache.model, q.treatment, translate(() => expandSegments(cache.model, cache.model.names.indexOf(q.treatment), q.by)), q.by);
       return answer(meta, translate(() => upliftTable(cache, q)));
+    },
+
+    /**
+     * Per-unit predictions for posted rows under each arm. Seeded by the version and the
+     * request, so the same question gets the same answer.
+     */
+    async whatIf(
+      workspaceId: string,
+      modelId: string,
+      rows: ReadonlyArray<Readonly<Record<string, number | string | null>>>,
+      q: WhatIfQuery,
+      version?: string,
+    ): Promise<Answered<WhatIfResult>> {
+      const { meta, cache } = await loadVersion(workspaceId, modelId, version);
+      checkQuery(cache.model, q.treatment, q.outcome, [...q.arms, ...(q.reference !== undefined ? [q.reference] : [])]);
+      return answer(meta, translate(() => whatIf(cache.model, rows, q, Rng.create(meta.number))));
     },
 
     /** The loaded model of a version (the what-if route and the report read it). */
