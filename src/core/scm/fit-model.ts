@@ -85,6 +85,8 @@ export interface FitModelOptions {
   readonly maxJointCells?: number;
   /** Recorded in the artifact. Default 'learned'. */
   readonly graphSource?: 'learned' | 'fixed';
+  /** Called after each mechanism is fitted (done of total); not stored. */
+  readonly onProgress?: (done: number, total: number) => void;
 }
 
 /** Compile a model from `frame` and a weighted DAG set over (a subset of) its columns. */
@@ -186,6 +188,7 @@ export function fitModel(frame: Frame, dagSet: GraphSetInput, options: FitModelO
     const family = familyFor(options.family, names[node]);
     const m = fitMechanism(x, y, kindOf(kinds[node]), { ...mechOpts, family, noise }, root.stream(1).stream(keyHash(key)), nLevels[node]);
     fitted.push(m);
+    options.onProgress?.(fitted.length, cache.size);
     if (rows.length < frame.nRows) notes.push(`${names[node]} | ${parents.length} parent(s): fitted on ${rows.length} of ${frame.nRows} rows (rows with missing values skipped)`);
   }
   const M = fitted.length;

@@ -34,6 +34,12 @@ describe('compiled model artifact', () => {
     expect(model.edgeProbability[0 * 5 + 1]).toBe(1);
   });
 
+  it('reports progress once per distinct mechanism', () => {
+    const calls: Array<[number, number]> = [];
+    fitModel(frame, set, { seed: 1, onProgress: (done, total) => calls.push([done, total]) });
+    expect(calls).toEqual(Array.from({ length: 7 }, (_, i) => [i + 1, 7]));
+  });
+
   it('round-trips bit for bit: bytes, every field, and identical simulation outputs for the same seed', () => {
     const bytes = serialise(model);
     const back = deserialise(bytes);
