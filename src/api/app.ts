@@ -106,8 +106,10 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
 
   // 3. App plugins: database, repositories, metrics.
   let shuttingDown = false;
-  const redis = options.redis !== undefined ? options.redis : config.REDIS_URL ? new Redis(config.REDIS_URL, { lazyConnect: true, maxRetriesPerRequest: 1, enableOfflineQueue: true }) : null;
-  const ownsRedis = options.redis === undefined && redis !== null;
+  const ownsRedis = options.redis === undefined && config.REDIS_URL !== undefined;
+  const redis = ownsRedis ? new Redis(config.REDIS_URL!, { lazyConnect: true, maxRetriesPerRequest: 1 }) : (options.redis ?? null);
+  // Connection trouble shows in /readyz; keep ioredis from printing unhandled-error noise.
+  if (ownsRedis) redis!.on('error', (err: Error) => app.log.debug({ err: err.message }, 'redis connection error'));
   const metrics = createMetrics();
   const keys = createKeysRepository(db);
   const workspaces = createWorkspacesRepository(db);
