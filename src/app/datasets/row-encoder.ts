@@ -91,23 +91,25 @@ export class RowEncoder {
     });
   }
 
-  /** Encode whole records into one COPY CSV chunk. */
-  encode(records: readonly string[][]): string {
+  /**
+   * Encode whole records into one COPY CSV chunk. The cells of `records` are replaced by
+   * their encoded text (the arrays are consumed), so each line is one `join`.
+   */
+  encode(records: string[][]): string {
     const cols = this.cols;
     const nc = cols.length;
     const prefix = `${this.batch},`;
-    let out = '';
+    const lines: string[] = new Array(records.length);
     for (let r = 0; r < records.length; r++) {
       const rec = records[r];
       const row = this.rows + 1;
       if (rec.length !== nc) throw dataError('ERR_DATA_RAGGED_ROW', { row, fields: rec.length, columns: nc });
-      let line = prefix + (this.firstRow + this.rows);
       for (let j = 0; j < nc; j++) {
         const c = cols[j];
         const s = trimCell(rec[j]);
         if (s.length === 0 || s === 'NA') {
           c.missing++;
-          line += ',';
+          rec[j] = '';
           continue;
         }
         if (c.kind === CONTINUOUS) {
@@ -125,18 +127,18 @@ export class RowEncoder {
           c.m2 += d * (v - c.mean);
           if (v < c.min) c.min = v;
           if (v > c.max) c.max = v;
-          line += ',' + (pgReadsAsIs(s, v) ? s : String(v));
+          rec[j] = pgReadsAsIs(s, v) ? s : String(v);
         } else {
           let e = c.entries.get(s);
           if (e === undefined) e = this.newLevel(c, s, row);
           e.count++;
-          line += ',' + e.csv;
+          rec[j] = e.csv;
         }
       }
-      out += line + '\n';
+      lines[r] = prefix + (this.firstRow + this.rows) + ',' + rec.join(',');
       this.rows++;
     }
-    return out;
+    return lines.length > 0 ? lines.join('\n') + '\n' : '';
   }
 
   private newLevel(c: ColumnState, s: string, row: number): LevelEntry {
