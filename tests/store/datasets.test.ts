@@ -158,6 +158,17 @@ describe.each(backendNames())('datasets on %s', (backend) => {
     await svc.remove(ws, r.dataset.id);
   });
 
+  it('keeps non-ASCII labels and labels with commas, quotes and line breaks intact', async () => {
+    const csv = 'owner,v\nZoë,1\n"€, ""euro""",2\n"two\nlines",3\nZoë,4\n';
+    const r = await svc.createFromCsv({ workspaceId: ws, name: 'labels', body: body(csv, 3) });
+    const f = await svc.loadFrame({ workspaceId: ws, datasetId: r.dataset.id });
+    const owner = f.frame.columns[0];
+    // Code-unit order: "Z" (U+005A) < "t" (U+0074) < "€" (U+20AC).
+    expect(owner.levels).toEqual(['Zoë', 'two\nlines', '€, "euro"']);
+    expect(Array.from(owner.values).map((k) => owner.levels?.[k])).toEqual(['Zoë', '€, "euro"', 'two\nlines', 'Zoë']);
+    await svc.remove(ws, r.dataset.id);
+  });
+
   it('honours declared kinds and levels', async () => {
     const r = await svc.createFromJson({
       workspaceId: ws,
