@@ -3,7 +3,7 @@
  *   1. the error handler and zod compilers (so every later plugin's errors map to problem+json),
  *   2. external plugins (security headers, sensible, rate limit, OpenAPI) — before routes, so
  *      their hooks and the document cover every route,
- *   3. app plugins: database handle, repositories, metrics,
+ *   3. app plugins: database handle, repositories (keys, workspaces), the datasets service, metrics,
  *   4. routes: operations at the root, the API under /v1 behind the auth hook.
  * The caller owns the database and closes it after `app.close()`.
  */
@@ -16,6 +16,7 @@ import { Redis } from 'ioredis';
 import type { Config } from '../config.js';
 import { apiError } from '../errors/catalogue.js';
 import type { Db } from '../store/db.js';
+import { createDatasetsService } from '../app/datasets/datasets-service.js';
 import { createKeysRepository } from '../store/keys-repository.js';
 import { createWorkspacesRepository } from '../store/workspaces-repository.js';
 import { loggerOptions } from './logger.js';
@@ -104,7 +105,7 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   }
   await installOpenApi(app, options.version ?? '0.1.0');
 
-  // 3. App plugins: database, repositories, metrics.
+  // 3. App plugins: database, repositories, use-case services, metrics.
   let shuttingDown = false;
   const ownsRedis = options.redis === undefined && config.REDIS_URL !== undefined;
   const redis = ownsRedis ? new Redis(config.REDIS_URL!, { lazyConnect: true, maxRetriesPerRequest: 1 }) : (options.redis ?? null);
@@ -113,6 +114,7 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   const metrics = createMetrics();
   const keys = createKeysRepository(db);
   const workspaces = createWorkspacesRepository(db);
+  const datasets = createDatasetsService(db);
   app.decorate('db', db);
   app.decorate('metrics', metrics);
   app.decorate('beginShutdown', () => {
@@ -133,7 +135,7 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
 
   // 4. Routes.
   await app.register(healthRoutes, { db, redis, isShuttingDown: () => shuttingDown });
-  await app.register(v1Routes, { prefix: '/v1', deps: { db, keys, workspaces }, config, metrics });
+  await app.register(v1Routes, { prefix: '/v1', deps: { db, keys, workspaces }, datasets, config, metrics });
 
   return app;
 }

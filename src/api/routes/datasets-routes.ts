@@ -6,11 +6,10 @@
 import multipart from '@fastify/multipart';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { createDatasetsService, type JsonTable } from '../../app/datasets/datasets-service.js';
+import type { DatasetsService, JsonTable } from '../../app/datasets/datasets-service.js';
 import type { IngestResult as IngestResultType } from '../../app/datasets/types.js';
 import type { Config } from '../../config.js';
 import { apiError } from '../../errors/catalogue.js';
-import type { Db } from '../../store/db.js';
 import { withProblems } from '../schemas/problem.js';
 import { installCsvBody } from '../plugins/csv-body.js';
 import type { AppMetrics } from '../plugins/metrics.js';
@@ -29,7 +28,7 @@ import { checkedName, csvUpload, declarations, mediaTypeOf, UPLOAD_MEDIA_TYPES, 
 
 /** Options of the datasets routes. */
 export interface DatasetsRouteOptions {
-  db: Db;
+  service: DatasetsService;
   config: Config;
   metrics: AppMetrics;
 }
@@ -44,8 +43,7 @@ const uploadBody = (json: typeof CreateDatasetJson | typeof AppendBatchJson) => 
   },
 });
 
-export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async (app, { db, config, metrics }) => {
-  const service = createDatasetsService(db);
+export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async (app, { service, config, metrics }) => {
   const uploadLimit = config.FULCRUM_UPLOAD_LIMIT_BYTES;
   installCsvBody(app, uploadLimit);
   await app.register(multipart, { throwFileSizeLimit: true, limits: { fileSize: uploadLimit + 1, files: 1 } });

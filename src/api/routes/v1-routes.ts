@@ -3,6 +3,7 @@
  * context, CSV and multipart) bodies are accepted; any other content type answers 415.
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import type { DatasetsService } from '../../app/datasets/datasets-service.js';
 import type { KeyDeps } from '../../app/keys/key-use-cases.js';
 import type { Config } from '../../config.js';
 import { installAuth } from '../plugins/auth.js';
@@ -13,6 +14,7 @@ import { keysRoutes } from './keys-routes.js';
 /** Options of the /v1 context. */
 export interface V1Options {
   deps: KeyDeps;
+  datasets: DatasetsService;
   config: Config;
   metrics: AppMetrics;
 }
@@ -21,5 +23,5 @@ export const v1Routes: FastifyPluginAsyncZod<V1Options> = async (v1, opts) => {
   v1.removeContentTypeParser('text/plain');
   installAuth(v1, opts.deps.keys);
   await v1.register(keysRoutes, { deps: opts.deps });
-  await v1.register(datasetsRoutes, { db: opts.deps.db, config: opts.config, metrics: opts.metrics });
+  await v1.register(datasetsRoutes, { service: opts.datasets, config: opts.config, metrics: opts.metrics });
 };
