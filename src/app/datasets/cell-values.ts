@@ -22,13 +22,52 @@ export const NOT_FINITE = 2;
 
 const NON_FINITE_WORD = /^[+-]?(nan|inf|infinity)$/i;
 
+const POW10 = [1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22];
+
 /**
- * Read a decimal number as PostgreSQL's float8 input accepts it. Returns the value, or
- * NOT_A_NUMBER / NOT_FINITE as a negative code through `out[0]` (0 when fine).
+ * Plain decimals (`-12.375`, at most 15 significant digits, at most 22 decimals) read
+ * without string-to-number conversion: the integer mantissa and 10^k are both exact doubles,
+ * so one correctly rounded division gives the correctly rounded value (Clinger 1990, "How to
+ * read floating point numbers accurately", the fast path). NaN when `s` is not that simple.
+ */
+function plainDecimal(s: string): number {
+  const n = s.length;
+  let i = 0;
+  let c = s.charCodeAt(0);
+  const neg = c === 45;
+  if (neg || c === 43) i = 1;
+  let m = 0;
+  let significant = 0;
+  let k = 0;
+  let dot = false;
+  let digits = false;
+  for (; i < n; i++) {
+    c = s.charCodeAt(i);
+    if (c >= 48 && c <= 57) {
+      m = m * 10 + (c - 48);
+      digits = true;
+      if (m !== 0) significant++;
+      if (dot) k++;
+    } else if (c === 46 && !dot) dot = true;
+    else return NaN;
+  }
+  if (!digits || significant > 15 || k > 22) return NaN;
+  const v = k === 0 ? m : m / POW10[k];
+  return neg ? -v : v;
+}
+
+/**
+ * Read a decimal number as PostgreSQL's float8 input accepts it. Returns the value, with
+ * `status[0]` 0 when fine, else NOT_A_NUMBER or NOT_FINITE (and NaN).
  * JavaScript also reads hex/octal/binary literals (`0x1f`); PostgreSQL does not, so they are
  * rejected here.
  */
 export function readNumber(s: string, status: Int32Array): number {
+  const p = plainDecimal(s);
+  if (p === p) {
+    status[0] = 0;
+    return p;
+  }
   const v = +s;
   if (v !== v || v === Infinity || v === -Infinity) {
     status[0] = v !== v && !NON_FINITE_WORD.test(s) ? NOT_A_NUMBER : NOT_FINITE;
