@@ -103,6 +103,15 @@ describe.each(backends())('operations on %s', (backend) => {
     expect(html.body).toMatch(/swagger/i);
   });
 
+  it('answers an unknown route with 404 problem+json', async () => {
+    for (const url of ['/nowhere', '/v1/nowhere']) {
+      const res = await t.app.inject({ method: 'GET', url: `${url}?q=1`, headers: bearer(t.a.adminKey) });
+      expect(res.statusCode).toBe(404);
+      expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
+      expect(res.json()).toMatchObject({ type: 'ERR_ROUTE_NOT_FOUND', status: 404, title: 'Not found', instance: url });
+    }
+  });
+
   it('sets security headers', async () => {
     const res = await t.app.inject({ method: 'GET', url: '/healthz' });
     expect(res.headers['x-content-type-options']).toBe('nosniff');
