@@ -125,7 +125,8 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   app.addHook('preClose', async () => {
     closing = true;
   });
-  app.addHook('onRequest', async () => {
+  app.addHook('onRequest', async (request, reply) => {
+    reply.header('x-request-id', request.id); // the id problems and log lines carry
     if (closing) throw apiError('ERR_SERVER_SHUTTING_DOWN');
   });
   app.addHook('onClose', async () => {

@@ -109,6 +109,7 @@ describe.each(backends())('operations on %s', (backend) => {
       expect(res.statusCode).toBe(404);
       expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
       expect(res.json()).toMatchObject({ type: 'ERR_ROUTE_NOT_FOUND', status: 404, title: 'Not found', instance: url });
+      expect(res.headers['x-request-id']).toBe(res.json().requestId);
     }
   });
 
