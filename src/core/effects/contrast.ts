@@ -125,7 +125,8 @@ export function contrast(
     if (check && check.scores && causal) {
       const sc = check.scores;
       let subMask: Uint8Array | undefined;
-      if (mask !== null) {
+      if (mask !== null && sc.identityRows) subMask = mask;
+      else if (mask !== null) {
         subMask = new Uint8Array(sc.n);
         for (let k = 0; k < sc.n; k++) subMask[k] = mask[sc.rows[k]];
       }

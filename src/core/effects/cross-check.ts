@@ -39,6 +39,8 @@ export interface CrossCheckScores {
   readonly n: number;
   /** Reference weight of each scored unit. */
   readonly weights: Float64Array;
+  /** True when `rows` is 0..R−1 (no reference row dropped), so a reference-row mask applies as is. */
+  readonly identityRows: boolean;
   readonly overlap: readonly ArmOverlap[];
 }
 
@@ -88,6 +90,11 @@ export function computeScores(
   const R = model.nReference;
   const tName = model.names[t];
   const yName = model.names[y];
+  const identity = (rows: Int32Array) => {
+    if (rows.length !== R) return false;
+    for (let i = 0; i < R; i++) if (rows[i] !== i) return false;
+    return true;
+  };
   const withWeights = (rows: Int32Array) => {
     const w = new Float64Array(rows.length);
     for (let i = 0; i < rows.length; i++) w[i] = model.referenceWeights[rows[i]];
@@ -121,7 +128,7 @@ export function computeScores(
         }
       }
       const overlap = s.overlap.filter((_, k) => arms.some((a) => a.action === ARM_SET && a.amount === unique[k]));
-      return { scores: { method: 'aipw', scores, rows: s.rows, n, weights: withWeights(s.rows), overlap }, note: null };
+      return { scores: { method: 'aipw', scores, rows: s.rows, n, weights: withWeights(s.rows), identityRows: identity(s.rows), overlap }, note: null };
     }
     const cArms: ContinuousArm[] = [];
     for (const a of arms) {
@@ -134,7 +141,7 @@ export function computeScores(
     if (model.kinds[y] === KIND_CATEGORICAL) return { scores: null, note: 'no cross-check for a categorical outcome with a continuous treatment' };
     const s = regressionScores(frame, tName, yName, adjustment, cArms, arms.map((a) => a.label));
     return {
-      scores: { method: 'regression-adjustment', scores: s.scores, rows: s.rows, n: s.n, weights: withWeights(s.rows), overlap: s.overlap },
+      scores: { method: 'regression-adjustment', scores: s.scores, rows: s.rows, n: s.n, weights: withWeights(s.rows), identityRows: identity(s.rows), overlap: s.overlap },
       note: null,
     };
   } catch (e) {

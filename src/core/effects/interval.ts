@@ -29,16 +29,39 @@ function mixtureCdf(x: number, mu: Float64Array, se: Float64Array, w: Float64Arr
   return f;
 }
 
-function mixtureQuantile(q: number, mu: Float64Array, se: Float64Array, w: Float64Array, G: number, lo: number, hi: number): number {
-  // Bisection on the monotone mixture CDF; 80 halvings reach double precision on any bracket.
+function mixturePdf(x: number, mu: Float64Array, se: Float64Array, w: Float64Array, G: number): number {
+  let f = 0;
+  for (let g = 0; g < G; g++) {
+    if (w[g] === 0 || !(se[g] > 0)) continue;
+    const z = (x - mu[g]) / se[g];
+    f += (w[g] * Math.exp(-0.5 * z * z)) / (se[g] * 2.5066282746310002);
+  }
+  return f;
+}
+
+/**
+ * The q-quantile of the mixture on the bracket [lo, hi]: safeguarded Newton steps from `start`
+ * (the mixture density is the CDF's derivative), falling back to bisection whenever a step
+ * leaves the bracket or the density vanishes (point masses); stops at 1e-10 in probability or
+ * a bracket 1e-12 of its scale wide.
+ */
+function mixtureQuantile(q: number, mu: Float64Array, se: Float64Array, w: Float64Array, G: number, lo: number, hi: number, start: number): number {
   let a = lo;
   let b = hi;
-  for (let it = 0; it < 80 && b - a > 1e-12 * (Math.abs(a) + Math.abs(b) + 1e-300); it++) {
-    const m = 0.5 * (a + b);
-    if (mixtureCdf(m, mu, se, w, G) < q) a = m;
-    else b = m;
+  let x = Math.min(hi, Math.max(lo, start));
+  const scale = Math.abs(lo) + Math.abs(hi) + 1e-300;
+  for (let it = 0; it < 100; it++) {
+    const F = mixtureCdf(x, mu, se, w, G) - q;
+    if (Math.abs(F) < 1e-10) return x;
+    if (F < 0) a = x;
+    else b = x;
+    if (b - a < 1e-12 * scale) return b;
+    const f = mixturePdf(x, mu, se, w, G);
+    let next = f > 0 ? x - F / f : NaN;
+    if (!(next > a && next < b)) next = 0.5 * (a + b);
+    x = next;
   }
-  return b;
+  return x;
 }
 
 /** Mixture interval at `level` (default 0.9) from per-graph estimates, standard errors and weights. */
@@ -69,8 +92,8 @@ export function mixtureInterval(mu: Float64Array, se: Float64Array, w: Float64Ar
   const alpha = (1 - level) / 2;
   return {
     estimate: m,
-    lower: mixtureQuantile(alpha, mu, se, wn, G, lo, hi),
-    upper: mixtureQuantile(1 - alpha, mu, se, wn, G, lo, hi),
+    lower: mixtureQuantile(alpha, mu, se, wn, G, lo, hi, m - 1.6448536269514722 * Math.sqrt(total)),
+    upper: mixtureQuantile(1 - alpha, mu, se, wn, G, lo, hi, m + 1.6448536269514722 * Math.sqrt(total)),
     sd: Math.sqrt(total),
     graphShare: total > 0 ? between / total : 0,
   };
