@@ -145,6 +145,16 @@ describe.each(backends())('bad input on %s', (backend) => {
       mentions: ['Row 2'],
     },
     {
+      name: 'a multipart kinds field with an unknown kind',
+      request: () => {
+        const mp = multipartBody(HOUSEHOLDS_CSV, { name: 'mp', kinds: 'occupants:ordinal' });
+        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
+      },
+      status: 400,
+      type: 'ERR_REQUEST_VALIDATION',
+      mentions: ['form field "kinds"'],
+    },
+    {
       name: 'a JSON body over the body limit',
       request: () => ({
         method: 'POST' as const,

@@ -86,10 +86,12 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
         }
         const upload = await csvUpload(request, uploadLimit);
         const f = upload.fields;
-        const location = f ? 'form' : 'query';
-        const name = checkedName(f?.name ?? q.name ?? f?.filename?.replace(/\.[^.]*$/, ''), f?.name ? location : 'query');
-        const schema = declarations(f?.kinds ?? q.kinds, f?.schema ?? q.schema, location);
-        result = await withUploadLimit(upload, () => service.createFromCsv({ workspaceId, name, body: upload.body, schema }));
+        result = await withUploadLimit(upload, async () => {
+          const location = f ? 'form' : 'query';
+          const name = checkedName(f?.name ?? q.name ?? f?.filename?.replace(/\.[^.]*$/, ''), f?.name ? location : 'query');
+          const schema = declarations(f?.kinds ?? q.kinds, f?.schema ?? q.schema, location);
+          return service.createFromCsv({ workspaceId, name, body: upload.body, schema });
+        });
         counted(result, f ? 'multipart' : 'csv');
       } else {
         throw unsupported(mediaType);
