@@ -31,17 +31,24 @@ const refusal = (fn: () => unknown): string => {
 describe('report links', () => {
   it('a signed token verifies to exactly its claims, and is URL-safe', () => {
     const token = signReportLink(SECRET, claims);
-    expect(token).toMatch(/^[A-Za-z0-9_-]+\.[A-Za-z0-9_-]{43}$/);
+    expect(token).toMatch(/^[A-Za-z0-9_-]{71}\.[A-Za-z0-9_-]{22}$/);
+    // Short enough for one path parameter under fastify's default maxParamLength (100).
+    expect(token.length).toBeLessThanOrEqual(100);
     expect(verifyReportLink(SECRET, token, NOW)).toEqual(claims);
   });
 
-  it('the signature is HMAC-SHA256 of the payload under the secret (checked with node:crypto directly)', () => {
+  it('the tag is the first 128 bits of HMAC-SHA256 over the payload bytes (checked with node:crypto directly)', () => {
     const token = signReportLink(SECRET, claims);
     const [payload, sig] = token.split('.');
-    // Independent recomputation: the documented domain label, then the payload text.
-    const want = createHmac('sha256', SECRET).update('fulcrum/report-link/v1\n').update(payload).digest('base64url');
+    const bytes = Buffer.from(payload, 'base64url');
+    // Independent recomputation: the documented domain label, then the payload bytes.
+    const want = createHmac('sha256', SECRET).update('fulcrum/report-link/v1\n').update(bytes).digest().subarray(0, 16).toString('base64url');
     expect(sig).toBe(want);
-    expect(JSON.parse(Buffer.from(payload, 'base64url').toString('utf8'))).toEqual([claims.workspaceId, claims.modelId, claims.versionId, claims.expiresAt]);
+    // Layout: format byte, three UUIDs, expiry as uint32 big-endian.
+    expect(bytes.length).toBe(53);
+    expect(bytes[0]).toBe(1);
+    expect(bytes.subarray(33, 49).toString('hex')).toBe(claims.versionId.replace(/-/g, ''));
+    expect(bytes.readUInt32BE(49)).toBe(claims.expiresAt);
   });
 
   it('an expired token is refused as expired (at the expiry second and after), and accepted one ms before', () => {
@@ -67,11 +74,14 @@ describe('report links', () => {
 
   it('a token for another version, with a later expiry, or under another secret is refused', () => {
     const token = signReportLink(SECRET, claims);
-    const [, sig] = token.split('.');
-    const otherPayload = Buffer.from(JSON.stringify([claims.workspaceId, claims.modelId, '44444444-4444-4444-8444-444444444444', claims.expiresAt])).toString('base64url');
-    expect(refusal(() => verifyReportLink(SECRET, `${otherPayload}.${sig}`, NOW))).toBe('bad-signature');
-    const later = Buffer.from(JSON.stringify([claims.workspaceId, claims.modelId, claims.versionId, claims.expiresAt + 10 ** 6])).toString('base64url');
-    expect(refusal(() => verifyReportLink(SECRET, `${later}.${sig}`, NOW))).toBe('bad-signature');
+    const [payload, sig] = token.split('.');
+    const bytes = Buffer.from(payload, 'base64url');
+    const other = Buffer.from(bytes);
+    other[40] ^= 1; // another version id
+    expect(refusal(() => verifyReportLink(SECRET, `${other.toString('base64url')}.${sig}`, NOW))).toBe('bad-signature');
+    const later = Buffer.from(bytes);
+    later.writeUInt32BE(claims.expiresAt + 10 ** 6, 49);
+    expect(refusal(() => verifyReportLink(SECRET, `${later.toString('base64url')}.${sig}`, NOW))).toBe('bad-signature');
     expect(refusal(() => verifyReportLink('another-secret-of-32-bytes-long!', token, NOW))).toBe('bad-signature');
   });
 
@@ -81,10 +91,11 @@ describe('report links', () => {
     expect(refusal(() => verifyReportLink(SECRET, 'not-a-token', NOW))).toBe('malformed');
     expect(refusal(() => verifyReportLink(SECRET, token.slice(0, -1), NOW))).toBe('malformed');
     expect(refusal(() => verifyReportLink(SECRET, `${token}x`, NOW))).toBe('malformed');
-    // A correctly signed payload that is not the expected shape is malformed, not trusted.
-    const odd = Buffer.from(JSON.stringify({ workspaceId: 'x' })).toString('base64url');
-    const sig = createHmac('sha256', SECRET).update('fulcrum/report-link/v1\n').update(odd).digest('base64url');
-    expect(refusal(() => verifyReportLink(SECRET, `${odd}.${sig}`, NOW))).toBe('malformed');
+    // A correctly tagged payload of an unknown format is malformed, not trusted.
+    const odd = Buffer.from(token.split('.')[0], 'base64url');
+    odd[0] = 2;
+    const tag = createHmac('sha256', SECRET).update('fulcrum/report-link/v1\n').update(odd).digest().subarray(0, 16).toString('base64url');
+    expect(refusal(() => verifyReportLink(SECRET, `${odd.toString('base64url')}.${tag}`, NOW))).toBe('malformed');
   });
 
   it('lifetimes: 60 minutes by default, clamped to 1 minute … 7 days; short secrets are rejected', () => {
@@ -94,5 +105,6 @@ describe('report links', () => {
     expect(linkExpiry(NOW, 0)).toBe(NOW / 1000 + 60);
     expect(() => signReportLink('short', claims)).toThrow(RangeError);
     expect(() => verifyReportLink('short', 'a.b', NOW)).toThrow(RangeError);
+    expect(() => signReportLink(SECRET, { ...claims, modelId: 'not-a-uuid' })).toThrow(RangeError);
   });
 });

@@ -59,7 +59,7 @@ export function renderGraphSvg(graph: VersionGraph, opts: GraphSvgOptions = {}):
     g.setEdge(a, b, { minlen: Math.max(1, prior?.minlen ?? 1), weight: 1 + 4 * e.probability, ...(labelled ? { width: 34, height: 16, labelpos: 'c' } : {}) });
   }
   dagre.layout(g);
-  const W = Math.ceil((g.graph().width ?? 400) + 90);
+  const W = Math.ceil((g.graph().width ?? 400) + (tiers.length > 1 ? 50 : 0));
   const H = Math.ceil(g.graph().height ?? 300);
 
   const parts: string[] = [];
@@ -67,7 +67,7 @@ export function renderGraphSvg(graph: VersionGraph, opts: GraphSvgOptions = {}):
     `<svg class="graph" role="img" aria-labelledby="graph-title graph-desc" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" xmlns="http://www.w3.org/2000/svg">`,
     `<title id="graph-title">Causal graph: ${graph.nodes.length} variables, ${graph.edges.length} edges with probability</title>`,
     `<desc id="graph-desc">Arrows point from cause to effect. Thicker, darker arrows are more probable; dashed arrows have probability below 50%.</desc>`,
-    '<defs><marker id="arrow" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse"><path d="M0,0 L10,5 L0,10 z" fill="#1f2933"/></marker></defs>',
+    '<defs><marker id="arrow" viewBox="0 0 10 10" refX="9" refY="5" markerUnits="userSpaceOnUse" markerWidth="11" markerHeight="11" orient="auto-start-reverse"><path d="M0,0 L10,5 L0,10 z" fill="#1f2933"/></marker></defs>',
   );
   // Tier bands: a dashed rule and a label at each boundary anchor.
   if (tiers.length > 1) {
@@ -87,7 +87,7 @@ export function renderGraphSvg(graph: VersionGraph, opts: GraphSvgOptions = {}):
     const label = g.edge(a, b) as { points?: Array<{ x: number; y: number }>; x?: number; y?: number };
     const pts = label.points ?? [];
     if (pts.length < 2) continue;
-    const d = `M${pts.map((p) => `${p.x.toFixed(1)},${p.y.toFixed(1)}`).join(' L')}`;
+    const d = smoothPath(pts);
     const p = e.probability;
     const width = (0.8 + 3.2 * p).toFixed(2);
     const opacity = (0.3 + 0.7 * p).toFixed(2);
@@ -131,4 +131,17 @@ export function renderGraphSvg(graph: VersionGraph, opts: GraphSvgOptions = {}):
   }
   parts.push('</svg>');
   return parts.join('\n');
+}
+
+/** A path through dagre's points: straight ends, quadratic bends through the midpoints between inner points. */
+function smoothPath(pts: ReadonlyArray<{ x: number; y: number }>): string {
+  const f = (v: number) => v.toFixed(1);
+  if (pts.length <= 2) return `M${f(pts[0].x)},${f(pts[0].y)} L${f(pts[pts.length - 1].x)},${f(pts[pts.length - 1].y)}`;
+  let d = `M${f(pts[0].x)},${f(pts[0].y)}`;
+  for (let i = 1; i < pts.length - 1; i++) {
+    const mx = (pts[i].x + pts[i + 1].x) / 2;
+    const my = (pts[i].y + pts[i + 1].y) / 2;
+    d += i === pts.length - 2 ? ` Q${f(pts[i].x)},${f(pts[i].y)} ${f(pts[i + 1].x)},${f(pts[i + 1].y)}` : ` Q${f(pts[i].x)},${f(pts[i].y)} ${f(mx)},${f(my)}`;
+  }
+  return d;
 }

@@ -64,6 +64,8 @@ footer { margin-top: 40px; color: var(--muted); font-size: 0.9em; border-top: 1p
   main { padding: 10px 12px 32px; }
   h1 { font-size: 1.3rem; }
   th, td { padding: 5px 6px; }
+  /* Keep graph labels legible on a phone: the figure scrolls sideways instead of shrinking below 540 px. */
+  svg.graph { min-width: 540px; }
 }
 @media print {
   @page { margin: 14mm; }
