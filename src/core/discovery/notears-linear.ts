@@ -24,6 +24,11 @@ import { finishDag, frameToMatrix } from './notears-common.js';
  *
  * Every column is treated as numeric with a squared loss (binary as a linear probability
  * model, categorical by its standardised code); the notes say so when that happens.
+ * The start is W = 0 and nothing is random, so the Rng argument is not drawn from.
+ *
+ * Caveat (Reisach, Seiler & Weichwald 2021): the equal-variance least-squares score orients
+ * edges well on raw data whose variances grow along the causal order, not on standardised
+ * data, where mostly the skeleton is reliable.
  */
 export interface LinearNotearsOptions {
   /** L1 weight λ. Default 0.1 (the value used in the paper's experiments). */
