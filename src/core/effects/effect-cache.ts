@@ -31,6 +31,9 @@ export interface UnitOutcomes {
   readonly pathProbability: number;
 }
 
+/** Most simulations kept per model (oldest evicted first); each holds G × A × R doubles. */
+export const MAX_CACHED_CONTRASTS = 64;
+
 /** Cache of simulations and cross-checks for one compiled model. */
 export class EffectCache {
   private readonly units = new Map<string, UnitOutcomes>();
@@ -77,6 +80,10 @@ export class EffectCache {
     }
     for (let g = 0; g < G; g++) causal[g] = graphAdjustment(model, g, t, y).causalPath ? 1 : 0;
     const entry: UnitOutcomes = { treatment: t, outcome: y, outcomeLevel: lv, arms: resolved, values, causalPath: causal, pathProbability: pathProbability(model, t, y) };
+    if (this.units.size >= MAX_CACHED_CONTRASTS) {
+      const oldest = this.units.keys().next().value as string;
+      this.units.delete(oldest);
+    }
     this.units.set(key, entry);
     return entry;
   }
@@ -103,6 +110,11 @@ export class EffectCache {
       }
       out.push({ adjustment: adj, scores: s.scores, note: s.note });
     }
+    if (this.checks.size >= MAX_CACHED_CONTRASTS) {
+      const oldest = this.checks.keys().next().value as string;
+      this.checks.delete(oldest);
+    }
+    if (this.scoreMemo.size >= 4 * MAX_CACHED_CONTRASTS) this.scoreMemo.clear();
     this.checks.set(key, out);
     return out;
   }
