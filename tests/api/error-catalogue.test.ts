@@ -1,11 +1,14 @@
 /**
  * Pins the error catalogue: codes and statuses are a public contract (clients switch on the
- * problem+json `type`). Changing one must change this list on purpose.
+ * problem+json `type`). Changing one must change this list on purpose. The service's own
+ * codes are pinned here; the data codes are pinned beside their catalogue in
+ * tests/store/data-errors.test.ts; this file checks that the merged list is exactly both.
  */
 import { describe, expect, it } from 'vitest';
 import { fieldName } from '../../src/api/plugins/error-handler.js';
 import { makeProblem, titleFor } from '../../src/api/problem.js';
-import { apiError, formatTemplate } from '../../src/errors/catalogue.js';
+import { API_ERRORS, apiError, formatTemplate } from '../../src/errors/catalogue.js';
+import { DATA_ERRORS } from '../../src/errors/data-errors.js';
 import { ERROR_CATALOGUE } from '../../src/errors/error-catalogue.js';
 import { FulcrumError } from '../../src/errors/fulcrum-error.js';
 
@@ -26,32 +29,20 @@ const PINNED: Record<string, number> = {
   ERR_ROUTE_NOT_FOUND: 404,
   ERR_SERVER_SHUTTING_DOWN: 503,
   ERR_SERVER_INTERNAL: 500,
-  ERR_DATA_EMPTY_FILE: 400,
-  ERR_DATA_NO_ROWS: 400,
-  ERR_DATA_EMPTY_COLUMN_NAME: 400,
-  ERR_DATA_DUPLICATE_COLUMN: 400,
-  ERR_DATA_COLUMN_NAME_TOO_LONG: 400,
-  ERR_DATA_TOO_MANY_COLUMNS: 400,
-  ERR_DATA_RAGGED_ROW: 400,
-  ERR_DATA_MALFORMED_CSV: 400,
-  ERR_DATA_NOT_A_NUMBER: 400,
-  ERR_DATA_NOT_FINITE: 400,
-  ERR_DATA_NOT_BINARY: 400,
-  ERR_DATA_TOO_MANY_LEVELS: 400,
-  ERR_DATA_UNKNOWN_LEVEL: 400,
-  ERR_DATA_BAD_CELL: 400,
-  ERR_DATA_BAD_SCHEMA: 400,
-  ERR_DATA_SCHEMA_MISMATCH: 400,
-  ERR_DATA_BAD_NAME: 400,
-  ERR_DATA_UNKNOWN_DATASET: 404,
-  ERR_DATA_UNKNOWN_BATCH: 400,
-  ERR_DATA_UNKNOWN_COLUMN: 400,
 };
 
 describe('the error catalogue', () => {
-  it('holds exactly the pinned codes with the pinned statuses', () => {
-    const actual = Object.fromEntries(Object.entries(ERROR_CATALOGUE).map(([code, e]) => [code, e.status]));
+  it('holds exactly the pinned service codes with the pinned statuses', () => {
+    const actual = Object.fromEntries(Object.entries(API_ERRORS).map(([code, e]) => [code, e.status]));
     expect(actual).toEqual(PINNED);
+  });
+
+  it('is exactly the service codes plus the data codes, with no code in both', () => {
+    const api = Object.keys(API_ERRORS);
+    const data = Object.keys(DATA_ERRORS);
+    expect(api.filter((c) => data.includes(c))).toEqual([]);
+    expect(Object.keys(ERROR_CATALOGUE).sort()).toEqual([...api, ...data].sort());
+    for (const code of data) expect(ERROR_CATALOGUE[code]).toBe(DATA_ERRORS[code as keyof typeof DATA_ERRORS]);
   });
 
   it('names every code ERR_<AREA>_<PROBLEM> and gives it a title and a template', () => {
