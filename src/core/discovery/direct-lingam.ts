@@ -36,9 +36,16 @@ import type { Learner, LearnResult } from './learner.js';
 export interface DirectLingamOptions {
   /** Exponent γ of the adaptive-lasso weights. Default 1 (Zou 2006). */
   readonly gamma: number;
+  /**
+   * Rows (evenly spaced) the causal-order search uses; pruning and weights always use every
+   * row. The search costs O(d³·rows), so larger data only slow it down once the entropy
+   * estimates are precise. Default 2000 (chosen on simulated data: at d = 20 with uniform or
+   * Laplace noise, 2000 rows already give the exact order).
+   */
+  readonly orderRows: number;
 }
 
-export const DIRECT_LINGAM_DEFAULTS: DirectLingamOptions = { gamma: 1 };
+export const DIRECT_LINGAM_DEFAULTS: DirectLingamOptions = { gamma: 1, orderRows: 2000 };
 
 // Constants of the entropy approximation (Hyvärinen 1998, eq. for G1 = log cosh, G2 = u·exp(−u²/2));
 // values as published there (k1 = 79.047, k2 = 7.4129, γ = 0.37457), quoted from memory.
@@ -53,6 +60,8 @@ export const directLingam: Learner<DirectLingamOptions> = {
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<DirectLingamOptions>, _rng: Rng): LearnResult {
     const gamma = options.gamma ?? DIRECT_LINGAM_DEFAULTS.gamma;
     if (!(gamma > 0)) throw new RangeError(`direct-lingam: gamma must be > 0, got ${gamma}`);
+    const orderRows = options.orderRows ?? DIRECT_LINGAM_DEFAULTS.orderRows;
+    if (!(orderRows >= 3)) throw new RangeError(`direct-lingam: orderRows must be ≥ 3, got ${orderRows}`);
     const names = frame.columns.map((c) => c.name);
     const d = names.length;
     const n = frame.nRows;
@@ -65,22 +74,22 @@ export const directLingam: Learner<DirectLingamOptions> = {
     if (nonContinuous.length > 0) {
       notes.push(`direct-lingam assumes continuous variables; ${nonContinuous.join(', ')} treated as numeric codes`);
     }
-    // Centred data (n×d, row-major) for the regressions; standardised column copies for the order.
+    // Centred data (n×d, row-major) for the regressions; standardised column copies of up to
+    // `orderRows` evenly spaced rows for the order search.
+    const m = Math.min(n, Math.floor(orderRows));
     const x: Matrix = { rows: n, cols: d, data: new Float64Array(n * d) };
     const work: Float64Array[] = [];
     for (let j = 0; j < d; j++) {
       const v = frame.columns[j].values;
-      let m = 0;
+      let mu = 0;
       for (let r = 0; r < n; r++) {
         if (Number.isNaN(v[r])) throw new RangeError(`direct-lingam: column "${names[j]}" has missing values; impute first (learn.ts does this)`);
-        m += v[r];
+        mu += v[r];
       }
-      m /= n;
-      const w = new Float64Array(n);
-      for (let r = 0; r < n; r++) {
-        x.data[r * d + j] = v[r] - m;
-        w[r] = v[r] - m;
-      }
+      mu /= n;
+      for (let r = 0; r < n; r++) x.data[r * d + j] = v[r] - mu;
+      const w = new Float64Array(m);
+      for (let t = 0; t < m; t++) w[t] = v[Math.floor((t * n) / m)];
       standardiseInPlace(w);
       work.push(w);
     }
@@ -111,7 +120,9 @@ export const directLingam: Learner<DirectLingamOptions> = {
         weights[kept[t] * d + j] = fit.coef[t];
       }
     }
-    notes.push(`causal order: ${order.map((i) => names[i]).join(' < ')}; edges pruned by adaptive lasso (BIC)`);
+    notes.push(
+      `causal order${m < n ? ` (searched on ${m} of ${n} rows)` : ''}: ${order.map((i) => names[i]).join(' < ')}; edges pruned by adaptive lasso (BIC)`,
+    );
     return {
       learner: 'direct-lingam',
       kind: 'dag',
