@@ -18,6 +18,10 @@ import { apiError } from '../errors/catalogue.js';
 import type { Db } from '../store/db.js';
 import { createDatasetsService } from '../app/datasets/datasets-service.js';
 import { createKeysRepository } from '../store/keys-repository.js';
+import { createModelsService, type ModelsService } from '../app/models/models-service.js';
+import { createQueriesService, type QueriesService } from '../app/queries/queries-service.js';
+import { createInProcessQueue } from '../jobs/in-process-queue.js';
+import type { QueuePort } from '../jobs/queue-port.js';
 import { createWorkspacesRepository } from '../store/workspaces-repository.js';
 import { loggerOptions } from './logger.js';
 import { installErrorHandler } from './plugins/error-handler.js';
@@ -41,10 +45,21 @@ export interface BuildAppOptions {
   logger?: FastifyServerOptions['logger'];
   /** Service version shown in the OpenAPI document. */
   version?: string;
+  /**
+   * The job queue fits are enqueued on (owned by the caller). Default: an in-process queue
+   * with no workers, closed with the app — fits then wait until a worker is started on it.
+   */
+  queue?: QueuePort;
 }
 
 declare module 'fastify' {
   interface FastifyInstance {
+    /** The job queue fits go to. */
+    queue: QueuePort;
+    /** Model, version, job and schedule use cases. */
+    models: ModelsService;
+    /** Effect queries from compiled versions. */
+    queries: QueriesService;
     /** The database handle (owned by whoever built the app). */
     db: Db;
     /** Prometheus metrics of this app; the dataset routes increment `rowsIngested`. */
@@ -115,7 +130,13 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   const keys = createKeysRepository(db);
   const workspaces = createWorkspacesRepository(db);
   const datasets = createDatasetsService(db);
+  const queue = options.queue ?? createInProcessQueue();
+  const models = createModelsService(db, queue);
+  const queries = createQueriesService(models);
   app.decorate('db', db);
+  app.decorate('queue', queue);
+  app.decorate('models', models);
+  app.decorate('queries', queries);
   app.decorate('metrics', metrics);
   app.decorate('beginShutdown', () => {
     shuttingDown = true;
@@ -132,11 +153,12 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   app.addHook('onClose', async () => {
     shuttingDown = true;
     if (ownsRedis && redis) redis.disconnect();
+    if (!options.queue) await queue.close();
   });
 
   // 4. Routes.
   await app.register(healthRoutes, { db, redis, isShuttingDown: () => shuttingDown });
-  await app.register(v1Routes, { prefix: '/v1', deps: { db, keys, workspaces }, datasets, config, metrics });
+  await app.register(v1Routes, { prefix: '/v1', deps: { db, keys, workspaces }, datasets, models, queries, config, metrics });
 
   return app;
 }

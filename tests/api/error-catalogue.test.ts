@@ -10,6 +10,7 @@ import { makeProblem, titleFor } from '../../src/api/problem.js';
 import { API_ERRORS, apiError, formatTemplate } from '../../src/errors/catalogue.js';
 import { DATA_ERRORS } from '../../src/errors/data-errors.js';
 import { ERROR_CATALOGUE } from '../../src/errors/error-catalogue.js';
+import { MODEL_ERRORS } from '../../src/errors/model-errors.js';
 import { FulcrumError } from '../../src/errors/fulcrum-error.js';
 
 const PINNED: Record<string, number> = {
@@ -31,17 +32,46 @@ const PINNED: Record<string, number> = {
   ERR_SERVER_INTERNAL: 500,
 };
 
+/** Model, job, schedule and query codes (src/errors/model-errors.ts). */
+const PINNED_MODEL: Record<string, number> = {
+  ERR_MODEL_NOT_FOUND: 404,
+  ERR_MODEL_VERSION_NOT_FOUND: 404,
+  ERR_MODEL_NOT_FITTED: 409,
+  ERR_MODEL_UNKNOWN_VARIABLE: 400,
+  ERR_MODEL_TOO_FEW_VARIABLES: 400,
+  ERR_MODEL_KNOWLEDGE: 400,
+  ERR_MODEL_FIXED_GRAPH_CYCLE: 400,
+  ERR_MODEL_TOO_FEW_ROWS: 400,
+  ERR_MODEL_DATASET_IN_USE: 409,
+  ERR_JOB_NOT_FOUND: 404,
+  ERR_JOB_FINISHED: 409,
+  ERR_QUEUE_UNAVAILABLE: 503,
+  ERR_SCHEDULE_NOT_FOUND: 404,
+  ERR_SCHEDULE_INVALID: 400,
+  ERR_QUERY_UNKNOWN_VARIABLE: 400,
+  ERR_QUERY_INVALID: 400,
+  ERR_QUERY_UNKNOWN_ARM: 400,
+  ERR_QUERY_SEGMENT_DESCENDANT: 422,
+  ERR_QUERY_SEGMENT_TOO_SMALL: 422,
+};
+
 describe('the error catalogue', () => {
+  it('holds exactly the pinned model, job and query codes with the pinned statuses', () => {
+    expect(Object.fromEntries(Object.entries(MODEL_ERRORS).map(([code, e]) => [code, e.status]))).toEqual(PINNED_MODEL);
+  });
+
   it('holds exactly the pinned service codes with the pinned statuses', () => {
     const actual = Object.fromEntries(Object.entries(API_ERRORS).map(([code, e]) => [code, e.status]));
     expect(actual).toEqual(PINNED);
   });
 
-  it('is exactly the service codes plus the data codes, with no code in both', () => {
+  it('is exactly the service, data and model codes, with no code in two of them', () => {
     const api = Object.keys(API_ERRORS);
     const data = Object.keys(DATA_ERRORS);
-    expect(api.filter((c) => data.includes(c))).toEqual([]);
-    expect(Object.keys(ERROR_CATALOGUE).sort()).toEqual([...api, ...data].sort());
+    const model = Object.keys(MODEL_ERRORS);
+    expect(api.filter((c) => data.includes(c) || model.includes(c))).toEqual([]);
+    expect(data.filter((c) => model.includes(c))).toEqual([]);
+    expect(Object.keys(ERROR_CATALOGUE).sort()).toEqual([...api, ...data, ...model].sort());
     for (const code of data) expect(ERROR_CATALOGUE[code]).toBe(DATA_ERRORS[code as keyof typeof DATA_ERRORS]);
   });
 

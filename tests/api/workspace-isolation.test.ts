@@ -6,6 +6,8 @@
  */
 import type { InjectOptions } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startFitRuntime } from '../../src/app/models/fit-runtime.js';
+import { generateScenario, scenarioCsv, SCENARIO_TRUE_EDGES } from '../../src/demo/scenario.js';
 import { announceBackends, backends, bearer, HOUSEHOLDS_CSV, snapshot, startTestApp, type TestApp } from './helpers/test-app.js';
 
 announceBackends('workspace-isolation');
@@ -16,6 +18,8 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
   let t: TestApp;
   let datasetB: string;
   let keyB: string;
+  let modelB: string;
+  let jobB: string;
 
   beforeAll(async () => {
     t = await startTestApp(backend);
@@ -28,6 +32,32 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     expect(res.statusCode).toBe(201);
     datasetB = res.json().dataset.id;
     keyB = (await t.app.inject({ method: 'GET', url: '/v1/keys', headers: bearer(t.b.adminKey) })).json().keys[0].id;
+    // B also has a fitted model (fixed graph: quick), a fit job and a refit schedule.
+    await startFitRuntime({ db: t.db, queue: t.app.queue, inlineCompute: true });
+    const bigB = await t.app.inject({
+      method: 'POST',
+      url: '/v1/datasets?name=b-scenario',
+      headers: { ...bearer(t.b.adminKey), 'content-type': 'text/csv' },
+      payload: scenarioCsv(generateScenario(300, 3)),
+    });
+    expect(bigB.statusCode).toBe(201);
+    const model = await t.app.inject({
+      method: 'POST',
+      url: '/v1/models',
+      headers: bearer(t.b.adminKey),
+      payload: { name: 'b-model', datasetId: bigB.json().dataset.id, fixedGraph: { edges: SCENARIO_TRUE_EDGES }, mechanisms: { family: 'linear' }, referenceRows: 200 },
+    });
+    expect(model.statusCode).toBe(202);
+    modelB = model.json().model.id;
+    jobB = model.json().job.id;
+    for (let i = 0; i < 600; i++) {
+      const j = await t.app.inject({ method: 'GET', url: `/v1/jobs/${jobB}`, headers: bearer(t.b.adminKey) });
+      if (j.json().state === 'succeeded') break;
+      expect(j.json().state).not.toBe('failed');
+      await new Promise((r) => setTimeout(r, 100));
+    }
+    const sched = await t.app.inject({ method: 'PUT', url: `/v1/models/${modelB}/schedule`, headers: bearer(t.b.adminKey), payload: { cron: '0 3 * * *', timezone: 'UTC' } });
+    expect(sched.statusCode).toBe(200);
     // A has objects of its own too, so "not found" cannot come from an empty workspace.
     await t.app.inject({ method: 'POST', url: '/v1/datasets?name=a-households', headers: { ...bearer(t.a.adminKey), 'content-type': 'text/csv' }, payload: HOUSEHOLDS_CSV });
   });
@@ -47,14 +77,59 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     '/v1/keys/{id}': {
       delete: (id) => ({ method: 'DELETE', url: `/v1/keys/${id}`, headers: bearer(t.a.adminKey) }),
     },
+    '/v1/models/{id}': {
+      get: (id) => ({ method: 'GET', url: `/v1/models/${id}`, headers: bearer(t.a.adminKey) }),
+      delete: (id) => ({ method: 'DELETE', url: `/v1/models/${id}`, headers: bearer(t.a.adminKey) }),
+    },
+    '/v1/models/{id}/fits': { post: (id) => ({ method: 'POST', url: `/v1/models/${id}/fits`, headers: bearer(t.a.adminKey) }) },
+    '/v1/models/{id}/versions': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions`, headers: bearer(t.a.adminKey) }) },
+    '/v1/models/{id}/versions/{version}': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions/1`, headers: bearer(t.a.adminKey) }) },
+    '/v1/models/{id}/versions/{version}/graph': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions/current/graph`, headers: bearer(t.a.adminKey) }) },
+    '/v1/models/{id}/versions/{version}/graph.dot': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions/1/graph.dot`, headers: bearer(t.a.adminKey) }) },
+    '/v1/models/{id}/diff': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/diff?from=1&to=1`, headers: bearer(t.a.adminKey) }) },
+    '/v1/models/{id}/schedule': {
+      get: (id) => ({ method: 'GET', url: `/v1/models/${id}/schedule`, headers: bearer(t.a.adminKey) }),
+      put: (id) => ({ method: 'PUT', url: `/v1/models/${id}/schedule`, headers: bearer(t.a.adminKey), payload: { cron: '0 4 * * *', timezone: 'UTC' } }),
+      delete: (id) => ({ method: 'DELETE', url: `/v1/models/${id}/schedule`, headers: bearer(t.a.adminKey) }),
+    },
+    '/v1/models/{id}/effect': {
+      post: (id) => ({
+        method: 'POST',
+        url: `/v1/models/${id}/effect`,
+        headers: bearer(t.a.adminKey),
+        payload: { treatment: 'programme', outcome: 'winter_kwh', arm: 'usage_report', reference: 'none' },
+      }),
+    },
+    '/v1/models/{id}/uplift': {
+      post: (id) => ({
+        method: 'POST',
+        url: `/v1/models/${id}/uplift`,
+        headers: bearer(t.a.adminKey),
+        payload: { treatment: 'programme', outcome: 'winter_kwh', arms: ['usage_report'], reference: 'none', by: { cells: ['heating'] }, better: 'lower' },
+      }),
+    },
+    '/v1/models/{id}/what-if': {
+      post: (id) => ({
+        method: 'POST',
+        url: `/v1/models/${id}/what-if`,
+        headers: bearer(t.a.adminKey),
+        payload: { treatment: 'programme', outcome: 'winter_kwh', arms: ['none', 'usage_report'], rows: [{ prior_kwh: 5000 }] },
+      }),
+    },
+    '/v1/jobs/{id}': { get: (id) => ({ method: 'GET', url: `/v1/jobs/${id}`, headers: bearer(t.a.adminKey) }) },
+    '/v1/jobs/{id}/cancel': { post: (id) => ({ method: 'POST', url: `/v1/jobs/${id}/cancel`, headers: bearer(t.a.adminKey) }) },
+    '/v1/jobs/{id}/events': { get: (id) => ({ method: 'GET', url: `/v1/jobs/${id}/events`, headers: bearer(t.a.adminKey) }) },
   };
-  const targetOf = (path: string) => (path.startsWith('/v1/keys') ? keyB : datasetB);
+  const targetOf = (path: string) =>
+    path.startsWith('/v1/keys') ? keyB : path.startsWith('/v1/models') ? modelB : path.startsWith('/v1/jobs') ? jobB : datasetB;
 
   /** Routes without an id: what B owns must not show up in A's answer. */
   const collections: Record<string, string[]> = {
     '/v1/datasets': ['get', 'post'],
     '/v1/keys': ['get', 'post'],
     '/v1/workspace': ['get'],
+    '/v1/models': ['get', 'post'],
+    '/v1/jobs': ['get'],
   };
 
   it('has a case for every /v1 route of the OpenAPI document', async () => {
@@ -100,6 +175,20 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     expect(ws.body).not.toContain(t.b.id);
   });
 
+  it("leaves B's models and jobs out of A's lists, and refuses a model on B's dataset as not found", async () => {
+    const models = await t.app.inject({ method: 'GET', url: '/v1/models', headers: bearer(t.a.adminKey) });
+    expect(models.statusCode).toBe(200);
+    expect(models.json().models).toEqual([]);
+    const jobs = await t.app.inject({ method: 'GET', url: '/v1/jobs', headers: bearer(t.a.adminKey) });
+    expect(jobs.json().jobs).toEqual([]);
+    const before = await snapshot(t.db);
+    const onB = await t.app.inject({ method: 'POST', url: '/v1/models', headers: bearer(t.a.adminKey), payload: { name: 'x', datasetId: datasetB } });
+    expect(onB.statusCode).toBe(404);
+    expect(await snapshot(t.db)).toEqual(before);
+    const stillB = await t.app.inject({ method: 'GET', url: `/v1/models/${modelB}/versions`, headers: bearer(t.b.adminKey) });
+    expect(stillB.json().versions).toHaveLength(1);
+  });
+
   it("puts what A creates in A's workspace only", async () => {
     const created = await t.app.inject({
       method: 'POST',
@@ -111,7 +200,7 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     const bKeys = await t.app.inject({ method: 'GET', url: '/v1/keys', headers: bearer(t.b.adminKey) });
     expect(bKeys.body).not.toContain(created.json().id);
     const bSets = await t.app.inject({ method: 'GET', url: '/v1/datasets', headers: bearer(t.b.adminKey) });
-    expect(bSets.json().datasets.map((d: { name: string }) => d.name)).toEqual(['b-households']);
+    expect(bSets.json().datasets.map((d: { name: string }) => d.name).sort()).toEqual(['b-households', 'b-scenario']);
   });
 
   it("leaves B's dataset whole after A's attempts", async () => {

@@ -8,13 +8,20 @@ import type { KeyDeps } from '../../app/keys/key-use-cases.js';
 import type { Config } from '../../config.js';
 import { installAuth } from '../plugins/auth.js';
 import type { AppMetrics } from '../plugins/metrics.js';
+import type { ModelsService } from '../../app/models/models-service.js';
+import type { QueriesService } from '../../app/queries/queries-service.js';
 import { datasetsRoutes } from './datasets-routes.js';
+import { effectsRoutes } from './effects-routes.js';
+import { jobsRoutes } from './jobs-routes.js';
+import { modelsRoutes } from './models-routes.js';
 import { keysRoutes } from './keys-routes.js';
 
 /** Options of the /v1 context. */
 export interface V1Options {
   deps: KeyDeps;
   datasets: DatasetsService;
+  models: ModelsService;
+  queries: QueriesService;
   config: Config;
   metrics: AppMetrics;
 }
@@ -24,4 +31,7 @@ export const v1Routes: FastifyPluginAsyncZod<V1Options> = async (v1, opts) => {
   installAuth(v1, opts.deps.keys);
   await v1.register(keysRoutes, { deps: opts.deps });
   await v1.register(datasetsRoutes, { service: opts.datasets, config: opts.config, metrics: opts.metrics });
+  await v1.register(modelsRoutes, { models: opts.models });
+  await v1.register(jobsRoutes, { models: opts.models });
+  await v1.register(effectsRoutes, { queries: opts.queries });
 };
