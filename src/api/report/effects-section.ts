@@ -84,7 +84,7 @@ export function renderUplift(data: ReportData, q: ReportQuestion): string {
   });
   const better = t.better === 'lower' ? 'lower' : 'higher';
   const rule = costs
-    ? `The recommended arm has the largest value: ${better === 'lower' ? 'the fall' : 'the rise'} in ${esc(t.outcome)} minus its extra cost per unit (costs ${esc(q.costs!.map(num).join(', '))} for ${esc(t.arms.join(', '))}); the reference when no arm’s value is positive.`
+    ? `The recommended arm has the largest value: ${better === 'lower' ? 'the fall' : 'the rise'} in ${esc(t.outcome)} minus its extra cost per unit (costs ${esc(q.costs!.join(', '))} for ${esc(t.arms.join(', '))}); the reference when no arm’s value is positive.`
     : `The recommended arm is the one that moves ${esc(t.outcome)} most in the better direction (${better} is better); the reference when no arm improves on it.`;
   const treatAll = t.treatAll.map((a) => `<li>Everyone on <strong>${esc(a.arm)}</strong>: ${interval(a)}</li>`).join('');
   return (

@@ -31,7 +31,7 @@ td.num, .num { font-variant-numeric: tabular-nums; white-space: nowrap; }
 td.rec { background: #eef7f1; }
 .badge { display: inline-block; font-weight: 700; color: var(--good); border: 1px solid var(--good); border-radius: 3px; padding: 0 4px; font-size: 0.85em; }
 td.recommended { white-space: nowrap; }
-.graph-box { overflow-x: auto; border: 1px solid var(--line); border-radius: 4px; background: #fff; }
+.graph-box { margin: 0; overflow-x: auto; border: 1px solid var(--line); border-radius: 4px; background: #fff; }
 svg.graph { display: block; max-width: 100%; height: auto; margin: 0 auto; font-family: inherit; }
 svg.graph .edge path { fill: none; stroke: #1f2933; }
 svg.graph .edge-label { font-size: 11px; fill: #1f2933; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
@@ -78,7 +78,7 @@ footer { margin-top: 40px; color: var(--muted); font-size: 0.9em; border-top: 1p
   h2, h3 { break-after: avoid; page-break-after: avoid; }
   td.rec { background: none; }
   .uplift td, .effects td { min-width: 0; }
-  svg.graph { max-height: 22cm; }
+  svg.graph { max-height: 18cm; width: auto; }
   a { color: inherit; text-decoration: none; }
 }
 `;
