@@ -35,6 +35,7 @@ import { pgliteTemplate } from './helpers/test-app.js';
 import { resolveQuestion, type ReportData } from '../../src/app/reports/report-data.js';
 import { diffGraphs } from '../../src/app/models/graph-views.js';
 import { crossCheckMix } from '../../src/api/report/effects-section.js';
+import { renderGraphSvg } from '../../src/api/report/graph-svg.js';
 import { renderReport } from '../../src/api/report/render-report.js';
 import { EffectCache, estimateEffect, upliftTable } from '../../src/core/effects/index.js';
 import { makeFrame, type Frame } from '../../src/core/frame/frame.js';
@@ -431,5 +432,54 @@ describe('report routes', () => {
     }
     const asKey = await t.app.inject({ method: 'POST', url: `/v1/models/${MODEL_ID}/versions/1/report-links`, headers: { authorization: `Bearer ${token}` } });
     expect(asKey.statusCode).toBe(401);
+  });
+});
+
+describe('graph drawing', () => {
+  const graph: VersionGraph = {
+    nodes: [
+      { name: 'A', kind: 'continuous' },
+      { name: 'B', kind: 'binary' },
+      { name: 'C', kind: 'continuous' },
+    ],
+    edges: [
+      { from: 'A', to: 'B', probability: 0.8 },
+      { from: 'B', to: 'C', probability: 0.3 },
+      { from: 'C', to: 'B', probability: 0.6 },
+    ],
+    graphs: [],
+  };
+  const svg = renderGraphSvg(graph, { treatment: 'A', outcome: 'C' });
+  const edge = (key: string) => new RegExp(`<g class="edge" data-edge="${key}"[^]*?</g>`).exec(svg)![0];
+
+  it('edges at 0.5 or more carry a visible label; weaker ones are dashed, with their probability on hover only', () => {
+    expect(edge('A→B')).toContain('>0.80</text>');
+    expect(edge('A→B')).not.toContain('stroke-dasharray');
+    expect(edge('B→C')).toContain('stroke-dasharray');
+    expect(edge('B→C')).not.toContain('class="edge-label"');
+    expect(edge('B→C')).toContain('<title>B → C: probability 30%</title>');
+    // Both directions of an uncertain pair are drawn.
+    expect(edge('C→B')).toContain('>0.60</text>');
+  });
+
+  it('stroke width and opacity grow with the probability', () => {
+    const w = (key: string) => Number(/stroke-width="([\d.]+)"/.exec(edge(key))![1]);
+    const o = (key: string) => Number(/stroke-opacity="([\d.]+)"/.exec(edge(key))![1]);
+    expect(w('B→C')).toBeLessThan(w('C→B'));
+    expect(w('C→B')).toBeLessThan(w('A→B'));
+    expect(o('B→C')).toBeLessThan(o('C→B'));
+    expect(o('C→B')).toBeLessThan(o('A→B'));
+  });
+
+  it('without tiers there are no tier rules; every node is placed inside the drawing', () => {
+    expect(svg).not.toContain('class="tier"');
+    const [, W, H] = /viewBox="0 0 (\d+) (\d+)"/.exec(svg)!.map(Number);
+    for (const m of svg.matchAll(/<rect class="node-box[^"]*" x="([\d.-]+)" y="([\d.-]+)" width="([\d.]+)" height="([\d.]+)"/g)) {
+      const [x, y, w, h] = m.slice(1).map(Number);
+      expect(x).toBeGreaterThanOrEqual(0);
+      expect(y).toBeGreaterThanOrEqual(0);
+      expect(x + w).toBeLessThanOrEqual(W);
+      expect(y + h).toBeLessThanOrEqual(H);
+    }
   });
 });
