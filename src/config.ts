@@ -39,6 +39,16 @@ export const configSchema = z.object({
   FULCRUM_RATE_LIMIT_MAX: z.coerce.number().int().min(0).default(600),
   /** Rate-limit window in milliseconds. Default 60000. */
   FULCRUM_RATE_LIMIT_WINDOW_MS: z.coerce.number().int().positive().default(60_000),
+  /** Fit jobs one process runs at once (each heavy step uses one compute thread). Default 2. */
+  FULCRUM_WORKER_CONCURRENCY: z.coerce.number().int().min(1).max(64).default(2),
+  /** BullMQ queue name (several deployments can share one Redis under different names). Default fulcrum. */
+  FULCRUM_QUEUE_NAME: z.string().regex(/^[A-Za-z0-9_-]{1,64}$/).default('fulcrum'),
+  /**
+   * Secret that signs read-only report links. Unset: a random secret per process, so links
+   * stop working at a restart; set it (32+ characters) when links must survive restarts or
+   * be served by several api replicas.
+   */
+  FULCRUM_LINK_SECRET: z.preprocess(emptyToUndefined, z.string().min(32).optional()),
   /** pino log level. Default info. */
   LOG_LEVEL: z.enum(LOG_LEVELS).default('info'),
   /** `production` switches off the pretty log transport. */

@@ -1,7 +1,7 @@
 /**
  * The command line as a user runs it: `serve` on the embedded default prints the first admin
- * key once, answers, and exits cleanly on SIGTERM; `migrate` reports; `worker` and `demo` say
- * they are not available yet.
+ * key once, answers, and exits cleanly on SIGTERM; `migrate` reports; `worker` without Redis
+ * says what it needs; a bad environment is named.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import http from 'node:http';
@@ -98,11 +98,11 @@ describe('main entry points (embedded back end)', () => {
     expect(r.out()).toContain('No pending migrations');
   });
 
-  it('worker and demo say they are not available yet; a bad environment is named (all exit 2)', async () => {
-    const [worker, demo, bad] = [run(['worker'], {}), run(['demo'], {}), run(['serve'], { PORT: 'eighty' })];
-    expect(await Promise.all([worker.exited, demo.exited, bad.exited])).toEqual([2, 2, 2]);
-    expect(worker.out()).toMatch(/worker is not available yet/);
-    expect(demo.out()).toMatch(/demo is not available yet/);
+  it('worker without REDIS_URL says it needs Redis; a bad environment is named; an unknown command shows usage (all exit 2)', async () => {
+    const [worker, bad, unknown] = [run(['worker'], {}), run(['serve'], { PORT: 'eighty' }), run(['fly'], {})];
+    expect(await Promise.all([worker.exited, bad.exited, unknown.exited])).toEqual([2, 2, 2]);
+    expect(worker.out()).toMatch(/worker needs REDIS_URL/);
     expect(bad.out()).toContain('PORT');
+    expect(unknown.out()).toContain('usage:');
   });
 });
