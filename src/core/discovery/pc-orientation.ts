@@ -1,6 +1,6 @@
 import type { CiTest } from './ci-tests.js';
 import type { CompiledKnowledge } from './knowledge.js';
-import { nextSubset, type Skeleton } from './pc-skeleton.js';
+import { mayCondition, nextSubset, type Skeleton } from './pc-skeleton.js';
 
 /**
  * How an unshielded triple i — k — j (i, j not adjacent) is decided to be a v-structure
@@ -12,7 +12,9 @@ import { nextSubset, type Skeleton } from './pc-skeleton.js';
  *   those separating sets, a non-collider only when it lies in all of them, else ambiguous.
  * Subsets are searched up to the largest size the skeleton phase tested. When no subset
  * separates i and j again, the separating set found by the skeleton phase decides (k
- * outside it → collider).
+ * outside it → collider). With tier-restricted conditioning (pc-skeleton.ts) the same
+ * restriction applies here: a variable in a tier later than both i and j is never put into
+ * a separating set, so such a k is a collider, as the tiers already force.
  */
 export type VStructureRule = 'majority' | 'conservative';
 
@@ -47,6 +49,7 @@ export function orientVStructures(
   alpha: number,
   maxCondSize: number,
   rule: VStructureRule,
+  tierRestricted = true,
 ): { report: OrientationReport; colliders: number[][] } {
   const n = skel.n;
   const adj = skel.adj;
@@ -58,7 +61,7 @@ export function orientVStructures(
       if (adj[i * n + k] === 0) continue;
       for (let j = i + 1; j < n; j++) {
         if (adj[j * n + k] === 0 || adj[i * n + j] === 1) continue;
-        const t = decideTriple(skel, test, i, k, j, alpha, maxCondSize, rule);
+        const t = decideTriple(skel, test, knowledge.tierOf, tierRestricted, i, k, j, alpha, maxCondSize, rule);
         if (t.decision === 'ambiguous') report.ambiguous++;
         if (t.decision !== 'collider') continue;
         report.colliders++;
@@ -184,6 +187,8 @@ function reaches(adj: Uint8Array, n: number, from: number, to: number, stack: nu
 function decideTriple(
   skel: Skeleton,
   test: Pick<CiTest, 'pValue'>,
+  tierOf: Int32Array,
+  tierRestricted: boolean,
   i: number,
   k: number,
   j: number,
@@ -202,7 +207,7 @@ function decideTriple(
     const from = side === 0 ? i : j;
     const other = side === 0 ? j : i;
     const cand: number[] = [];
-    for (let v = 0; v < n; v++) if (v !== other && adj[from * n + v] === 1) cand.push(v);
+    for (let v = 0; v < n; v++) if (v !== other && adj[from * n + v] === 1 && (!tierRestricted || mayCondition(tierOf, v, i, j))) cand.push(v);
     const top = Math.min(maxCondSize, Math.max(0, skel.maxLevel), cand.length);
     for (let size = 0; size <= top; size++) {
       const idx = new Int32Array(Math.max(1, size));

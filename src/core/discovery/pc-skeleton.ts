@@ -21,7 +21,24 @@ export interface Skeleton {
  * removed as soon as one test does not reject at level `alpha`.
  *
  * Knowledge: a pair forbidden in both directions starts non-adjacent; a pair with a
- * required edge is never tested (and so never removed).
+ * required edge is never tested (and so never removed). With `tierRestricted` (the
+ * default), a pair i—j is only tested given variables that may be ancestors of i or j
+ * under the tiers (see {@link mayCondition}): a variable in a tier strictly later than both
+ * i's and j's is never put into a conditioning set.
+ *
+ * Why this is sound: if i and j are not adjacent in the true DAG, they are d-separated by
+ * Pa(i) or by Pa(j) (whichever endpoint is not an ancestor of the other; Spirtes, Glymour &
+ * Scheines 2000, the lemma behind PC's correctness), and PC finds that set among the
+ * adjacencies of i or j. A variable in a tier later than both cannot be a parent of either
+ * when the tiers hold, so dropping it from the candidates loses no separating set that PC
+ * relies on. It drops only sets that contain a descendant — typically a common effect, whose
+ * conditioning opens a path, or a near-cancellation that makes a true edge look absent
+ * through a later collider. The restriction of conditioning sets by a temporal order is the
+ * standard "tiered" / "temporal" PC variant (citations from memory: Spirtes, Glymour &
+ * Scheines 2000 on time order as background knowledge; Witte, Foraita & Didelez 2022, Stat. Med.,
+ * for a description of tiered PC; Bang & Didelez 2023, UAI, for its equivalence classes).
+ * The restriction depends on the pair only, not on the variable order, so the result stays
+ * order-independent (PC-stable).
  */
 export function pcSkeleton(
   n: number,
@@ -29,7 +46,9 @@ export function pcSkeleton(
   knowledge: CompiledKnowledge,
   alpha: number,
   maxCondSize: number,
+  tierRestricted = true,
 ): Skeleton {
+  const tierOf = knowledge.tierOf;
   const adj = new Uint8Array(n * n);
   const keep = new Uint8Array(n * n);
   for (let i = 0; i < n; i++) {
@@ -67,7 +86,7 @@ export function pcSkeleton(
           const from = side === 0 ? i : j;
           const other = side === 0 ? j : i;
           cand.length = 0;
-          for (const v of frozen[from]) if (v !== other) cand.push(v);
+          for (const v of frozen[from]) if (v !== other && (!tierRestricted || mayCondition(tierOf, v, i, j))) cand.push(v);
           if (cand.length < level) continue;
           testable = true;
           // Enumerate size-`level` subsets of cand in lexicographic order of positions.
@@ -91,6 +110,19 @@ export function pcSkeleton(
     maxLevel = level;
   }
   return { n, adj, sepsets, maxLevel };
+}
+
+/**
+ * True unless `v` lies in a tier strictly later than the tiers of both `i` and `j` — only
+ * then can the tiers rule out that v is an ancestor of i or of j. Untiered variables, and
+ * every v when i or j is untiered (v may then be a parent of the untiered one), stay eligible.
+ */
+export function mayCondition(tierOf: Int32Array, v: number, i: number, j: number): boolean {
+  const tv = tierOf[v];
+  const ti = tierOf[i];
+  const tj = tierOf[j];
+  if (tv < 0 || ti < 0 || tj < 0) return true;
+  return tv <= (ti > tj ? ti : tj);
 }
 
 /** Advances `idx` (size k, increasing positions < m) to the next combination; false at the end. */

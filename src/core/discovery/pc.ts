@@ -15,6 +15,11 @@ import { pcSkeleton } from './pc-skeleton.js';
  * to the CPDAG. Tests: Fisher z for continuous variables, nested-regression
  * likelihood-ratio tests when binary or categorical variables take part (ci-tests.ts).
  *
+ * Tiers also restrict the conditioning sets (tiered PC, pc-skeleton.ts): the adjacency of
+ * X and Y is never tested given a variable of a tier later than both, since such a variable
+ * can be an ancestor of neither; this keeps true edges that a later common effect (or a
+ * near-cancellation through one) would make look absent, and saves tests.
+ *
  * Knowledge is a hard constraint throughout: a pair forbidden both ways is never
  * adjacent; a required edge is never removed and is oriented as required; an edge one of
  * whose directions is forbidden (explicitly or by the tiers: an edge between tiers points
@@ -39,16 +44,24 @@ export interface PcOptions {
   readonly maxCondSize: number;
   /** Rule deciding v-structures, both order-independent. Default 'majority'. */
   readonly vStructureRule: VStructureRule;
+  /**
+   * Condition only on variables the tiers allow to be ancestors of the tested pair (never
+   * on one in a tier later than both). Default true; false gives plain PC-stable, which
+   * uses the tiers for orientation only. No effect without tiers.
+   */
+  readonly tierRestricted: boolean;
 }
 
-export const PC_DEFAULTS: PcOptions = { alpha: 0.01, maxCondSize: Infinity, vStructureRule: 'majority' };
+export const PC_DEFAULTS: PcOptions = { alpha: 0.01, maxCondSize: Infinity, vStructureRule: 'majority', tierRestricted: true };
 
 function validate(o: Partial<PcOptions>): PcOptions {
   const v: PcOptions = {
     alpha: o.alpha ?? PC_DEFAULTS.alpha,
     maxCondSize: o.maxCondSize ?? PC_DEFAULTS.maxCondSize,
     vStructureRule: o.vStructureRule ?? PC_DEFAULTS.vStructureRule,
+    tierRestricted: o.tierRestricted ?? PC_DEFAULTS.tierRestricted,
   };
+  if (typeof v.tierRestricted !== 'boolean') throw new TypeError(`pc: tierRestricted must be a boolean, got ${String(v.tierRestricted)}`);
   if (!(v.alpha > 0 && v.alpha < 1)) throw new RangeError(`pc: alpha must lie in (0, 1), got ${v.alpha}`);
   if (!(v.maxCondSize >= 0)) throw new RangeError(`pc: maxCondSize must be ≥ 0, got ${v.maxCondSize}`);
   if (v.vStructureRule !== 'majority' && v.vStructureRule !== 'conservative') {
@@ -98,10 +111,11 @@ export function pcWithTest(
   o: PcOptions,
 ): { adj: Uint8Array; notes: string[] } {
   const n = names.length;
-  const skel = pcSkeleton(n, test, knowledge, o.alpha, o.maxCondSize);
+  const tiered = o.tierRestricted && knowledge.tierOf.some((t) => t >= 0);
+  const skel = pcSkeleton(n, test, knowledge, o.alpha, o.maxCondSize, tiered);
   const pdag = skel.adj.slice();
   imposeKnowledge(pdag, n, knowledge);
-  const { report: rep, colliders } = orientVStructures(skel, pdag, test, knowledge, o.alpha, o.maxCondSize, o.vStructureRule);
+  const { report: rep, colliders } = orientVStructures(skel, pdag, test, knowledge, o.alpha, o.maxCondSize, o.vStructureRule, tiered);
   const forced = new Uint8Array(n * n);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
@@ -110,6 +124,7 @@ export function pcWithTest(
   }
   const adj = applyColliders(pdag, n, colliders, (marks) => closeUnderMeek(marks, names, knowledge), forced, rep);
   const notes = [
+    tiered ? 'tier-restricted conditioning: no variable of a tier later than both tested variables' : 'conditioning sets not restricted by tiers',
     `conditioning sets up to size ${skel.maxLevel < 0 ? 0 : skel.maxLevel}`,
     `v-structures (${o.vStructureRule} rule): ${rep.colliders} colliders, ${rep.ambiguous} ambiguous triples, ` +
       `${rep.conflicts} conflicting edges left undirected, ${rep.vetoed} orientations refused by the knowledge, ` +

@@ -145,6 +145,58 @@ describe('PC-stable', () => {
     expect(edges(run(f, { tiers: [['z'], ['y']] }))).toEqual(['x→w', 'y→x', 'z→y']);
   });
 
+  it('tier-restricted conditioning keeps a true edge that a later-tier collider cancels (plain PC-stable drops it)', () => {
+    // x → y (0.5), x → c (1), y → c (1), noise variances 1, 1, 2. The precision matrix of a
+    // linear SEM is (I − B)ᵀ Ω⁻¹ (I − B), so its x,y entry is −0.5/1 + (1·1)/2 = 0: x ⊥ y | c
+    // exactly, although x → y is an edge (a faithfulness violation through the collider c).
+    // Marginally corr(x, y) = 0.5/√1.25 ≈ 0.447 (analytic).
+    const n = 2000;
+    const [x, ey, ec] = gaussians(n, 3, 21);
+    const y = new Float64Array(n);
+    const c = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      y[r] = 0.5 * x[r] + ey[r];
+      c[r] = x[r] + y[r] + Math.SQRT2 * ec[r];
+    }
+    const f = makeFrame([cont('x', x), cont('y', y), cont('c', c)]);
+    const test = createCiTest(f);
+    // The p-values that make the point: dependent marginally, "independent" given c.
+    expect(test.pValue(0, 1, [])).toBeLessThan(1e-12);
+    expect(test.pValue(0, 1, [2])).toBeGreaterThan(PC_DEFAULTS.alpha);
+    const tiers = { tiers: [['x'], ['y'], ['c']] };
+    // c is in a tier after both x and y, so it is never a candidate separator of x and y.
+    expect(edges(run(f, tiers))).toEqual(['x→c', 'x→y', 'y→c']);
+    expect(edges(run(f, tiers, { tierRestricted: false }))).toEqual(['x→c', 'y→c']);
+    // With x, y in one tier c is still later than both; with c untiered it is eligible again,
+    // separates x and y, and — being in their separating set — is no collider.
+    expect(edges(run(f, { tiers: [['x', 'y'], ['c']] }))).toEqual(['x—y', 'x→c', 'y→c']);
+    expect(edges(run(f, { tiers: [['x'], ['y']] }))).toEqual(['x—c', 'y—c']);
+  });
+
+  it('tier-restricted conditioning runs fewer tests and, with an oracle, still returns the true CPDAG skeleton', () => {
+    for (let seed = 51; seed <= 60; seed++) {
+      const g = randomDag({ family: 'er', nodes: 10, expectedEdges: 16 }, Rng.create(seed));
+      const order = topologicalOrder(g)!;
+      const tiers = [order.slice(0, 3), order.slice(3, 6), order.slice(6)].map((t) => t.map((i) => g.names[i]));
+      let calls = 0;
+      const oracle = {
+        pValue: (i: number, j: number, s: readonly number[]) => {
+          calls++;
+          return dSeparated(g, [i], [j], s) ? 1 : 0;
+        },
+      };
+      const k = compileKnowledge(g.names, { tiers });
+      const restricted = pcWithTest(g.names, oracle, k, PC_DEFAULTS).adj;
+      const callsRestricted = calls;
+      calls = 0;
+      const plain = pcWithTest(g.names, oracle, k, { ...PC_DEFAULTS, tierRestricted: false }).adj;
+      // A perfect test gives the same graph either way (soundness of the restriction) ...
+      expect(Array.from(restricted), `seed ${seed}`).toEqual(Array.from(plain));
+      // ... with no more tests.
+      expect(callsRestricted, `seed ${seed}`).toBeLessThanOrEqual(calls);
+    }
+  });
+
   it('keeps a required edge the data would remove and never adds a forbidden one', () => {
     const n = 1500;
     const [a, b, c] = gaussians(n, 3, 4);
@@ -258,5 +310,6 @@ describe('PC-stable', () => {
     const f = makeFrame([cont('a', a), cont('b', b)]);
     expect(() => run(f, {}, { alpha: 0 })).toThrow(RangeError);
     expect(() => run(f, {}, { vStructureRule: 'x' as never })).toThrow(/vStructureRule/);
+    expect(() => run(f, {}, { tierRestricted: 'yes' as never })).toThrow(/tierRestricted/);
   });
 });
