@@ -171,6 +171,15 @@ describe('report page rendering', () => {
     expect(data.question).toMatchObject({ treatment: 'T', outcome: 'Y', reference: 'none', arms: ['report', 'rebate'], by: ['G'], better: 'higher' });
   });
 
+  it('an unknown treatment or a numeric one without arms gives a note instead of a question', () => {
+    const spec = { treatment: 'T', outcome: 'Y' };
+    expect(resolveQuestion(data.graph, spec, { treatment: 'nope' }).note).toMatch(/“nope” is not a variable of this model; choose one of: G, W, T, Y, M/);
+    expect(resolveQuestion(data.graph, spec, { treatment: 'W' }).note).toMatch(/“W” is numeric; add \?arms=/);
+    expect(resolveQuestion(data.graph, {}, {}).note).toMatch(/names no treatment and outcome/);
+    // Segments default to the first discrete variable the treatment cannot affect.
+    expect(resolveQuestion(data.graph, spec, {}).question?.by).toEqual(['G']);
+  });
+
   it('draws every node once, marks treatment and outcome by tag and shape, and every edge with a <title>', () => {
     expect(attrs(html, 'data-node').sort()).toEqual(['G', 'M', 'T', 'W', 'Y']);
     expect(html).toMatch(/data-node="T" data-role="treatment"/);

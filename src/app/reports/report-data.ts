@@ -103,6 +103,11 @@ export function resolveQuestion(graph: VersionGraph, spec: SpecView, q: ReportQu
   if (!treatment || !outcome) {
     return { question: null, note: 'This model names no treatment and outcome; add ?treatment=…&outcome=… to the link to see effects.' };
   }
+  for (const v of [treatment, outcome]) {
+    if (!graph.nodes.some((n) => n.name === v)) {
+      return { question: null, note: `“${v}” is not a variable of this model; choose one of: ${graph.nodes.map((n) => n.name).join(', ')}.` };
+    }
+  }
   if (!q.treatment) defaults.push(`treatment “${treatment}” from the model`);
   if (!q.outcome) defaults.push(`outcome “${outcome}” from the model`);
   const node = graph.nodes.find((n) => n.name === treatment);
