@@ -59,7 +59,7 @@ function renderQuestion(data: ReportData): string {
       (q.defaults.length ? `<p class="meta">Defaults used: ${esc(q.defaults.join('; '))}.</p>` : '')
     : `<p>${esc(data.questionNote ?? '')}</p>`;
   const form =
-    `<form class="question" method="get" action="">` +
+    `<form class="question" method="get">` +
     `<label>Treatment<select name="treatment">${opts(q?.treatment)}</select></label>` +
     `<label>Outcome<select name="outcome">${opts(q?.outcome)}</select></label>` +
     `<label>Arms (comma-separated)<input name="arms" value="${esc(q ? q.arms.join(',') : '')}"></label>` +
