@@ -129,6 +129,15 @@ describe.skipIf(!haveChromium && !process.env.CI)('report page in headless Chrom
       await mkdir(join(process.cwd(), 'docs', 'images'), { recursive: true });
       await page.screenshot({ path: SCREENSHOT, fullPage: true });
 
+      // Asking another question needs no script: the form GETs the same link with new parameters.
+      await page.selectOption('form.question select[name="better"]', 'higher');
+      await page.fill('form.question input[name="costs"]', '');
+      await Promise.all([page.waitForURL(/better=higher/), page.click('form.question button')]);
+      const asked = new URL(page.url());
+      expect(asked.pathname).toBe(new URL(link.url).pathname);
+      expect(asked.searchParams.get('by')).toBe(QUERY.by.join(','));
+      expect(await page.locator('table.uplift tbody tr').count()).toBe(apiRows.length);
+
       // Phone width: the page itself never scrolls sideways (wide tables and the graph scroll in their boxes).
       await page.setViewportSize({ width: 375, height: 800 });
       const overflow = await page.evaluate<number>('document.documentElement.scrollWidth');
