@@ -224,7 +224,8 @@ async function main(argv: readonly string[]): Promise<number> {
       return 0;
     }
     if (command === 'worker') await worker(config);
-    else if (command === 'demo') await demo(config);
+    // The demo's own report is the output; request logs would bury it unless asked for.
+    else if (command === 'demo') await demo(process.env.LOG_LEVEL ? config : { ...config, LOG_LEVEL: 'warn' });
     else await serve(config);
   } catch (err) {
     if (err instanceof ConfigError) {
