@@ -44,6 +44,11 @@ export const configSchema = z.object({
   /** BullMQ queue name (several deployments can share one Redis under different names). Default fulcrum. */
   FULCRUM_QUEUE_NAME: z.string().regex(/^[A-Za-z0-9_-]{1,64}$/).default('fulcrum'),
   /**
+   * BullMQ lock on a running fit job, in ms: a job whose worker died is retried by another
+   * worker once its lock expires (workers look every min(30 s, this)). Default 60000.
+   */
+  FULCRUM_JOB_LOCK_MS: z.coerce.number().int().min(1000).max(3_600_000).default(60_000),
+  /**
    * Secret that signs read-only report links. Unset: a random secret per process, so links
    * stop working at a restart; set it (32+ characters) when links must survive restarts or
    * be served by several api replicas.

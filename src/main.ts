@@ -52,7 +52,7 @@ async function migrate(config: Config): Promise<void> {
 /** BullMQ on REDIS_URL, or the in-process queue of the embedded default. */
 function createQueue(config: Config): QueuePort {
   return config.REDIS_URL
-    ? createBullmqQueue({ redisUrl: config.REDIS_URL, queueName: config.FULCRUM_QUEUE_NAME })
+    ? createBullmqQueue({ redisUrl: config.REDIS_URL, queueName: config.FULCRUM_QUEUE_NAME, lockDurationMs: config.FULCRUM_JOB_LOCK_MS })
     : createInProcessQueue({ concurrency: config.FULCRUM_WORKER_CONCURRENCY });
 }
 

@@ -24,6 +24,14 @@ export interface BullmqQueueOptions {
   redisUrl: string;
   /** Queue name; tests use a unique one each. Default "fulcrum". */
   queueName?: string;
+  /**
+   * How long a worker's lock on a running job lasts, in ms (renewed at half this while the
+   * job runs). A job whose worker died is handed back to another worker once it expires.
+   * Default 60000.
+   */
+  lockDurationMs?: number;
+  /** How often workers look for jobs whose lock expired, in ms. Default min(30000, lockDurationMs). */
+  stalledIntervalMs?: number;
 }
 
 /** Parent data of a flow is wrapped so the parent can return its children's results in order. */
@@ -37,6 +45,8 @@ const isEnvelope = (d: unknown): d is FlowEnvelope => typeof d === 'object' && d
 
 export function createBullmqQueue(options: BullmqQueueOptions): QueuePort {
   const name = options.queueName ?? 'fulcrum';
+  const lockDuration = options.lockDurationMs ?? 60_000;
+  const stalledInterval = options.stalledIntervalMs ?? Math.min(30_000, lockDuration);
   const producerConn = new Redis(options.redisUrl, { maxRetriesPerRequest: 1, enableOfflineQueue: false, lazyConnect: false });
   const workerConn = (): Redis => new Redis(options.redisUrl, { maxRetriesPerRequest: null });
   const owned: Redis[] = [producerConn];
@@ -140,7 +150,7 @@ export function createBullmqQueue(options: BullmqQueueOptions): QueuePort {
       if (worker) return;
       const conn = workerConn();
       owned.push(conn);
-      worker = new Worker(name, process, { connection: conn, concurrency: opts?.concurrency ?? 1, lockDuration: 60_000 });
+      worker = new Worker(name, process, { connection: conn, concurrency: opts?.concurrency ?? 1, lockDuration, stalledInterval });
       worker.on('error', () => {});
       subscriber = workerConn();
       owned.push(subscriber);
