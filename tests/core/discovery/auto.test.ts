@@ -68,6 +68,41 @@ describe('auto rule', () => {
     expect(chooseLearner(f, new Set(['pc', 'direct-lingam'])).learner).toBe('pc');
   });
 
+  // A column linear in its continuous and discrete parents is not linear in its continuous
+  // ones alone: E[y | x] = βx + Σ_k P(d = k | x)·γ_k bends with x (a mixture over the levels
+  // of d). Truth here: every mechanism is linear given d, so the diagnostic must say linear.
+  it('does not mistake shifts by a categorical parent for nonlinearity (linear given the levels)', () => {
+    const n = 3000;
+    const rng = Rng.create(8);
+    const d = new Float64Array(n);
+    const x = Array.from({ length: 4 }, () => new Float64Array(n));
+    const mu = [-2, 0, 2];
+    const gamma = [0, 2.5, -1];
+    for (let r = 0; r < n; r++) {
+      const u = rng.uniform();
+      const k = u < 0.3 ? 0 : u < 0.7 ? 1 : 2;
+      d[r] = k;
+      x[0][r] = mu[k] + rng.normal();
+      x[1][r] = 0.8 * x[0][r] + gamma[k] + rng.normal();
+      x[2][r] = -0.7 * x[1][r] + gamma[2 - k] + rng.normal();
+      x[3][r] = 0.6 * x[2][r] + 0.5 * x[0][r] - gamma[k] + rng.normal();
+    }
+    const cols: Column[] = [{ name: 'd', kind: 'categorical', levels: ['a', 'b', 'c'], values: d }, ...x.map((v, j) => cont(`x${j}`, v))];
+    const c = chooseLearner(makeFrame(cols), ALL);
+    expect(c.diagnostics.nonlinear).toBe(0);
+    expect(c.learner).toBe('pc');
+    expect(c.reasons.join(' ')).toMatch(/look linear/);
+  });
+
+  it('still picks the MLP learner for nonlinear mechanisms when a binary column takes part', () => {
+    const f = sem(2000, gauss, (v) => Math.tanh(2 * v) + 0.5 * v * v, 9);
+    const rng = Rng.create(10);
+    const b = Float64Array.from(f.columns[0].values, (v) => (v + 0.5 * rng.normal() > 0 ? 1 : 0));
+    const c = chooseLearner(makeFrame([...f.columns, { name: 'b', kind: 'binary', values: b }]), ALL);
+    expect(c.diagnostics.nonlinear).toBeGreaterThanOrEqual(2);
+    expect(c.learner).toBe('mlp-notears');
+  });
+
   it('picks PC for mostly discrete data and for small samples', () => {
     const rng = Rng.create(5);
     const n = 500;
