@@ -7,6 +7,7 @@
  *   4. routes: operations at the root, the API under /v1 behind the auth hook.
  * The caller owns the database and closes it after `app.close()`.
  */
+import { randomBytes } from 'node:crypto';
 import helmet from '@fastify/helmet';
 import rateLimit from '@fastify/rate-limit';
 import sensible from '@fastify/sensible';
@@ -29,6 +30,7 @@ import { createMetrics, installMetrics, type AppMetrics } from './plugins/metric
 import { installOpenApi } from './plugins/openapi.js';
 import { healthRoutes } from './routes/health-routes.js';
 import { v1Routes } from './routes/v1-routes.js';
+import { reportPageRoutes } from './routes/report-routes.js';
 
 /** What buildApp needs. */
 export interface BuildAppOptions {
@@ -133,6 +135,8 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   const queue = options.queue ?? createInProcessQueue();
   const models = createModelsService(db, queue);
   const queries = createQueriesService(models);
+  // Without a configured secret, links are signed with a per-process one and end at a restart.
+  const linkSecret = config.FULCRUM_LINK_SECRET ?? randomBytes(32).toString('base64url');
   app.decorate('db', db);
   app.decorate('queue', queue);
   app.decorate('models', models);
@@ -158,7 +162,9 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
 
   // 4. Routes.
   await app.register(healthRoutes, { db, redis, isShuttingDown: () => shuttingDown });
-  await app.register(v1Routes, { prefix: '/v1', deps: { db, keys, workspaces }, datasets, models, queries, config, metrics });
+  await app.register(v1Routes, { prefix: '/v1', deps: { db, keys, workspaces }, datasets, models, queries, config, metrics, linkSecret });
+  // The report page sits outside /v1: a signed link stands in for the key a plain link cannot send.
+  await app.register(reportPageRoutes, { models, queries, secret: linkSecret });
 
   return app;
 }

@@ -11,6 +11,7 @@ import { API_ERRORS, apiError, formatTemplate } from '../../src/errors/catalogue
 import { DATA_ERRORS } from '../../src/errors/data-errors.js';
 import { ERROR_CATALOGUE } from '../../src/errors/error-catalogue.js';
 import { MODEL_ERRORS } from '../../src/errors/model-errors.js';
+import { REPORT_ERRORS } from '../../src/errors/report-errors.js';
 import { FulcrumError } from '../../src/errors/fulcrum-error.js';
 
 const PINNED: Record<string, number> = {
@@ -32,7 +33,7 @@ const PINNED: Record<string, number> = {
   ERR_SERVER_INTERNAL: 500,
 };
 
-/** Model, job, schedule and query codes (src/errors/model-errors.ts). */
+/** Model, job, schedule, query (src/errors/model-errors.ts) and report-link codes (src/errors/report-errors.ts). */
 const PINNED_MODEL: Record<string, number> = {
   ERR_MODEL_NOT_FOUND: 404,
   ERR_MODEL_VERSION_NOT_FOUND: 404,
@@ -53,11 +54,13 @@ const PINNED_MODEL: Record<string, number> = {
   ERR_QUERY_UNKNOWN_ARM: 400,
   ERR_QUERY_SEGMENT_DESCENDANT: 422,
   ERR_QUERY_SEGMENT_TOO_SMALL: 422,
+  ERR_REPORT_LINK_INVALID: 404,
+  ERR_REPORT_LINK_EXPIRED: 403,
 };
 
 describe('the error catalogue', () => {
   it('holds exactly the pinned model, job and query codes with the pinned statuses', () => {
-    expect(Object.fromEntries(Object.entries(MODEL_ERRORS).map(([code, e]) => [code, e.status]))).toEqual(PINNED_MODEL);
+    expect(Object.fromEntries(Object.entries({ ...MODEL_ERRORS, ...REPORT_ERRORS }).map(([code, e]) => [code, e.status]))).toEqual(PINNED_MODEL);
   });
 
   it('holds exactly the pinned service codes with the pinned statuses', () => {
@@ -68,7 +71,7 @@ describe('the error catalogue', () => {
   it('is exactly the service, data and model codes, with no code in two of them', () => {
     const api = Object.keys(API_ERRORS);
     const data = Object.keys(DATA_ERRORS);
-    const model = Object.keys(MODEL_ERRORS);
+    const model = [...Object.keys(MODEL_ERRORS), ...Object.keys(REPORT_ERRORS)];
     expect(api.filter((c) => data.includes(c) || model.includes(c))).toEqual([]);
     expect(data.filter((c) => model.includes(c))).toEqual([]);
     expect(Object.keys(ERROR_CATALOGUE).sort()).toEqual([...api, ...data, ...model].sort());

@@ -85,6 +85,9 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     '/v1/models/{id}/versions': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions`, headers: bearer(t.a.adminKey) }) },
     '/v1/models/{id}/versions/{version}': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions/1`, headers: bearer(t.a.adminKey) }) },
     '/v1/models/{id}/versions/{version}/graph': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions/current/graph`, headers: bearer(t.a.adminKey) }) },
+    '/v1/models/{id}/versions/{version}/report-links': {
+      post: (id) => ({ method: 'POST', url: `/v1/models/${id}/versions/1/report-links`, headers: bearer(t.a.adminKey), payload: {} }),
+    },
     '/v1/models/{id}/versions/{version}/graph.dot': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/versions/1/graph.dot`, headers: bearer(t.a.adminKey) }) },
     '/v1/models/{id}/diff': { get: (id) => ({ method: 'GET', url: `/v1/models/${id}/diff?from=1&to=1`, headers: bearer(t.a.adminKey) }) },
     '/v1/models/{id}/schedule': {

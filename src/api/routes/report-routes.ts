@@ -9,7 +9,7 @@
  *    GET /reports/:token → the report page (text/html). The token grants that one version's
  *    page and nothing else; the query string only chooses the question asked of it.
  *    Refused tokens: altered or malformed → 404 ERR_REPORT_LINK_INVALID; correctly signed but
- *    expired → 403 ERR_REPORT_LINK_EXPIRED (problem+json, see app/reports/report-errors.ts).
+ *    expired → 403 ERR_REPORT_LINK_EXPIRED (problem+json, see errors/report-errors.ts).
  *    The page is sent with a Content-Security-Policy that forbids every script and every
  *    external load (only inline styles and data: images), no caching and no referrer.
  */
@@ -18,7 +18,7 @@ import { z } from 'zod';
 import type { ModelsService } from '../../app/models/models-service.js';
 import type { QueriesService } from '../../app/queries/queries-service.js';
 import { gatherReport, type ReportQuestionInput } from '../../app/reports/report-data.js';
-import { reportError } from '../../app/reports/report-errors.js';
+import { reportError } from '../../errors/report-errors.js';
 import { DEFAULT_LINK_MINUTES, linkExpiry, MAX_LINK_MINUTES, ReportLinkError, signReportLink, verifyReportLink } from '../../app/reports/report-links.js';
 import { apiError } from '../../errors/catalogue.js';
 import { renderReport } from '../report/render-report.js';

@@ -14,6 +14,7 @@ import { datasetsRoutes } from './datasets-routes.js';
 import { effectsRoutes } from './effects-routes.js';
 import { jobsRoutes } from './jobs-routes.js';
 import { modelsRoutes } from './models-routes.js';
+import { reportLinkRoutes } from './report-routes.js';
 import { keysRoutes } from './keys-routes.js';
 
 /** Options of the /v1 context. */
@@ -24,6 +25,8 @@ export interface V1Options {
   queries: QueriesService;
   config: Config;
   metrics: AppMetrics;
+  /** Secret signing read-only report links. */
+  linkSecret: string;
 }
 
 export const v1Routes: FastifyPluginAsyncZod<V1Options> = async (v1, opts) => {
@@ -34,4 +37,5 @@ export const v1Routes: FastifyPluginAsyncZod<V1Options> = async (v1, opts) => {
   await v1.register(modelsRoutes, { models: opts.models });
   await v1.register(jobsRoutes, { models: opts.models });
   await v1.register(effectsRoutes, { queries: opts.queries });
+  await v1.register(reportLinkRoutes, { models: opts.models, queries: opts.queries, secret: opts.linkSecret });
 };

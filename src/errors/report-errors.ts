@@ -6,8 +6,8 @@
  * answer says nothing about what it might have pointed at); a correctly signed token past its
  * expiry is 403 (the holder once had access, and hears that it must ask for a new link).
  */
-import { formatTemplate, type CatalogueEntry } from '../../errors/catalogue.js';
-import { FulcrumError } from '../../errors/fulcrum-error.js';
+import { formatTemplate, type CatalogueEntry } from './catalogue.js';
+import { FulcrumError } from './fulcrum-error.js';
 
 export const REPORT_ERRORS = {
   ERR_REPORT_LINK_INVALID: {
