@@ -1,6 +1,7 @@
 import type { BatchStats } from '../app/datasets/column-stats.js';
 import type { BatchInfo, ColumnKind, ColumnSchema, DatasetSummary } from '../app/datasets/types.js';
 import { ident, type Db } from './db.js';
+import { UUID, iso } from './column-values.js';
 
 /** SQL type of each column kind in a dataset table (see migrations/002_datasets.sql). */
 const SQL_TYPE: Record<ColumnKind, string> = {
@@ -9,7 +10,6 @@ const SQL_TYPE: Record<ColumnKind, string> = {
   categorical: 'text',
 };
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** A datasets row as the use cases need it. */
 export interface DatasetRow {
@@ -27,7 +27,6 @@ export interface BatchRow extends BatchInfo {
   stats: BatchStats;
 }
 
-const iso = (v: unknown): string => (v instanceof Date ? v.toISOString() : new Date(String(v)).toISOString());
 
 /** The table name of a dataset id: `ds_` and the id's 32 hex digits. */
 export function datasetTableName(id: string): string {

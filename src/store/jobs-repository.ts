@@ -4,9 +4,8 @@
  * is scoped by workspace.
  */
 import type { Db } from './db.js';
+import { UUID, isoOrNull } from './column-values.js';
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const iso = (v: unknown): string | null => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : new Date(String(v)).toISOString());
 
 export type JobState = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 export type JobTrigger = 'create' | 'manual' | 'schedule';
@@ -69,9 +68,9 @@ const toJob = (r: RawJob): JobRow => ({
   replicatesDone: r.replicates_done,
   versionId: r.version_id,
   cancelRequested: r.cancel_requested,
-  createdAt: iso(r.created_at)!,
-  startedAt: iso(r.started_at),
-  finishedAt: iso(r.finished_at),
+  createdAt: isoOrNull(r.created_at)!,
+  startedAt: isoOrNull(r.started_at),
+  finishedAt: isoOrNull(r.finished_at),
 });
 
 const FINAL = "('succeeded', 'failed', 'cancelled')";

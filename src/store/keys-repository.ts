@@ -4,6 +4,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { Db } from './db.js';
+import { UUID } from './column-values.js';
 
 /** A key as stored (no secret). */
 export interface ApiKeyRow {
@@ -57,7 +58,6 @@ const toKey = (r: RawKey): ApiKeyRow => ({
   revokedAt: r.revoked_at === null ? null : new Date(r.revoked_at),
 });
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** Repository factory; every method takes an optional transaction to run inside. */
 export function createKeysRepository(db: Db) {

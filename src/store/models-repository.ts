@@ -4,9 +4,8 @@
  */
 import type { Db } from './db.js';
 import { CancelledJobError } from './jobs-repository.js';
+import { UUID, iso } from './column-values.js';
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const iso = (v: unknown): string => (v instanceof Date ? v.toISOString() : new Date(String(v)).toISOString());
 
 export interface ModelRow {
   id: string;

@@ -1,8 +1,7 @@
 /** Refit schedules, one per model; scoped by workspace. */
 import type { Db } from './db.js';
+import { UUID, iso } from './column-values.js';
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const iso = (v: unknown): string => (v instanceof Date ? v.toISOString() : new Date(String(v)).toISOString());
 
 export interface ScheduleRow {
   modelId: string;
