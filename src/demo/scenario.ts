@@ -185,7 +185,7 @@ function evaluate(noise: Noise, forced?: Programme): ScenarioTable {
     let programme: number;
     if (forced !== undefined) programme = PROGRAMMES.indexOf(forced);
     else {
-      const wReport = Math.exp(-0.4 + 0.5 * c + [0.5, 0, -0.3][region]);
+      const wReport = Math.exp(-0.4 + 0.3 * c + [0.5, 0, -0.3][region]);
       const wRebate = Math.exp(-0.9 + 0.6 * c + [-0.4, 0, 0.6][region]);
       programme = pick(noise.programme[i], [1, wReport, wRebate]);
     }
@@ -201,7 +201,7 @@ function evaluate(noise: Noise, forced?: Programme): ScenarioTable {
       0.92 * prior -
       60 * d * d * Math.sign(d) +
       perDegree * (setpoint - 20.5) -
-      0.016 * prior * sessions +
+      0.02 * prior * sessions +
       [0, 150, -100][heating] +
       110 * occupants +
       [0, 80, 250][region] +
