@@ -167,6 +167,16 @@ function main(): void {
     estimateEffect(cache, { treatment, outcome, arm: 1, reference: 0 });
     if (i >= 5) (cold.push(performance.now() - t0), coldCpu.push(cpuMs() - c0));
   }
+  // The same cold queries without the cross-check (simulation, intervals from Monte Carlo and graph uncertainty only).
+  const coldNoCc: number[] = [];
+  const upNoCc: number[] = [];
+  for (let i = 0; i < ITER + 5; i++) {
+    const c0 = cpuMs();
+    estimateEffect(new EffectCache(model), { treatment, outcome, arm: 1, reference: 0, crossCheck: false });
+    const c1 = cpuMs();
+    upliftTable(new EffectCache(model), { treatment, outcome, arms: [1, 2, 3], reference: 0, by: { variable: segmentVar, bins: 9 }, better: 'higher', crossCheck: false });
+    if (i >= 5) (coldNoCc.push(c1 - c0), upNoCc.push(cpuMs() - c1));
+  }
   const warmCache = new EffectCache(model);
   estimateEffect(warmCache, { treatment, outcome, arm: 1, reference: 0 });
   const warm: number[] = [];
@@ -230,6 +240,8 @@ function main(): void {
     warm_segment_cpu_p50_ms: +pct(warmCpu, 0.5).toFixed(3),
     uplift_cpu_p50_ms: +pct(upColdCpu, 0.5).toFixed(3),
     uplift_warm_cpu_p50_ms: +pct(upWarmCpu, 0.5).toFixed(3),
+    cold_ate_no_crosscheck_cpu_p50_ms: +pct(coldNoCc, 0.5).toFixed(3),
+    uplift_no_crosscheck_cpu_p50_ms: +pct(upNoCc, 0.5).toFixed(3),
     load_average_1min: +loadavg()[0].toFixed(2),
     simulation_gflops: +(simRate / 1e9).toFixed(3),
     reference_gflops: +(refRate / 1e9).toFixed(3),
@@ -242,6 +254,8 @@ function main(): void {
     `| warm segment (CATE) | ${res.warm_segment_p50_ms} | ${res.warm_segment_p99_ms} | ${res.warm_segment_cpu_p50_ms} | ≤ 2 |`,
     `| uplift 9 segments × 3 arms, cold (one simulation pass) | ${res.uplift_p50_ms} | ${res.uplift_p99_ms} | ${res.uplift_cpu_p50_ms} | ≤ 30 |`,
     `| uplift 9 segments × 3 arms, warm | ${res.uplift_warm_p50_ms} | ${res.uplift_warm_p99_ms} | ${res.uplift_warm_cpu_p50_ms} | |`,
+    `| cold ATE, crossCheck: false | | | ${res.cold_ate_no_crosscheck_cpu_p50_ms} | |`,
+    `| uplift cold, crossCheck: false | | | ${res.uplift_no_crosscheck_cpu_p50_ms} | |`,
   ].join('\n');
   console.log('');
   console.log(table);
