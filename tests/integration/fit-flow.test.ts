@@ -274,7 +274,7 @@ describe.skipIf(!ready)('fit flow on PostgreSQL + Redis + BullMQ worker processe
       datasetId,
       learner: 'pc',
       knowledge: { tiers: SCENARIO_TIERS },
-      replicates: 16,
+      replicates: 10,
       mechanisms: { family: 'linear' },
       referenceRows: 200,
     });
@@ -308,8 +308,8 @@ describe.skipIf(!ready)('fit flow on PostgreSQL + Redis + BullMQ worker processe
     expect(versions[0].jobId).toBe(jobId);
     expect((await get(main.app, `/v1/models/${id}`)).json().currentVersionId).toBe(versions[0].id);
     expect(Number((await db.query<{ n: string }>('SELECT count(*)::text AS n FROM model_versions WHERE model_id = $1', [id])).rows[0].n)).toBe(1);
-    // All 16 replicates went into the version (none lost or counted twice by the retry).
-    expect(versions[0].diagnostics.replicates).toBe(16);
+    // All 10 replicates went into the version (none lost or counted twice by the retry).
+    expect(versions[0].diagnostics.replicates).toBe(10);
   });
 
   it('c. Redis down: fit submission answers 503 problem+json fast, writes nothing, queries still answer', async () => {
