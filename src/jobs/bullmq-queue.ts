@@ -54,6 +54,9 @@ export function createBullmqQueue(options: BullmqQueueOptions): QueuePort {
   producerConn.on('error', () => {});
   const queue = new Queue(name, { connection: producerConn });
   const flows = new FlowProducer({ connection: producerConn });
+  // Redis being down is answered per call (503 on submission); the objects' own error events are not news.
+  queue.on('error', () => {});
+  flows.on('error', () => {});
   const handlers = new Map<string, JobHandler<unknown, unknown>>();
   const listeners = new Set<(id: string, p: JobProgress) => void>();
   const cancelledKey = `fulcrum:${name}:cancelled`;
