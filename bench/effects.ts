@@ -34,6 +34,12 @@ import { Rng } from '../src/core/random/rng.js';
 import { fitFixedGraph, fitModel } from '../src/core/scm/fit-model.js';
 import { generateDataset, simulateDo, type SyntheticScm } from '../src/core/synthetic/index.js';
 
+/** IHDP replication k: shared/data beside the checkout (as CI lays it out), else /work/shared/data. */
+function ihdpFile(k: number): string {
+  const beside = new URL(`../../shared/data/ihdp/ihdp_npci_${k}.csv`, import.meta.url).pathname;
+  return existsSync(beside) ? beside : `/work/shared/data/ihdp/ihdp_npci_${k}.csv`;
+}
+
 const SEEDS = Number(process.env.FULCRUM_BENCH_SEEDS ?? 20);
 /**
  * Random-SCM cases: each needs its own 10^6-draw truth per arm and, on nonlinear data, the MLP
@@ -274,7 +280,7 @@ function median(xs: number[]): number {
 function ihdp(): { errors: number[]; mean: number } {
   const errors: number[] = [];
   for (let k = 1; k <= 10; k++) {
-    const rows = readFileSync(`/work/shared/data/ihdp/ihdp_npci_${k}.csv`, 'utf8').trim().split(/\r?\n/).map((l) => l.split(',').map(Number));
+    const rows = readFileSync(ihdpFile(k), 'utf8').trim().split(/\r?\n/).map((l) => l.split(',').map(Number));
     const n = rows.length;
     const col = (j: number) => Float64Array.from(rows, (r) => r[j]);
     const xs = Array.from({ length: 25 }, (_, i) => `x${i + 1}`);

@@ -1,6 +1,6 @@
 // Source: R. H. Dehejia & S. Wahba (1999), "Causal Effects in Nonexperimental Studies:
 // Reevaluating the Evaluation of Training Programs", JASA 94(448): 1053–1062 — the NSW
-// experimental sample (185 treated, 260 controls) in /work/shared/data/lalonde_nsw/
+// experimental sample (185 treated, 260 controls) in shared/data/lalonde_nsw/
 // (see shared/data/SOURCES.md). Experimental difference in mean re78: 6349.14 − 4554.80 = 1794.34.
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
@@ -10,8 +10,9 @@ import { makeFrame, type Column } from '../../src/core/frame/frame.js';
 import { graphFromEdges } from '../../src/core/graph/graph.js';
 import { Rng } from '../../src/core/random/rng.js';
 import { fitFixedGraph } from '../../src/core/scm/fit-model.js';
+import { sharedDataFile } from './shared-data.js';
 
-const FILE = '/work/shared/data/lalonde_nsw/nsw_dw_experimental.csv';
+const FILE = sharedDataFile('lalonde_nsw', 'nsw_dw_experimental.csv');
 
 function nswFrame() {
   const lines = readFileSync(FILE, 'utf8').trim().split(/\r?\n/);
