@@ -21,6 +21,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { installAuth } from '../../src/api/plugins/auth.js';
+import { createAuthCache } from '../../src/app/keys/auth-cache.js';
 import { installErrorHandler } from '../../src/api/plugins/error-handler.js';
 import { REPORT_CSP, reportLinkRoutes, reportPageRoutes } from '../../src/api/routes/report-routes.js';
 import { createKey, createWorkspaceWithAdminKey } from '../../src/app/keys/key-use-cases.js';
@@ -333,7 +334,7 @@ async function routeApp(clock: { now: number }) {
   const opts = { models, queries, secret: SECRET, now: () => clock.now };
   await app.register(
     async (v1) => {
-      installAuth(v1, deps.keys);
+      installAuth(v1, createAuthCache(deps.keys));
       await v1.register(reportLinkRoutes, opts);
     },
     { prefix: '/v1' },

@@ -10,6 +10,7 @@ import { join } from 'node:path';
 import type { FastifyInstance } from 'fastify';
 import { buildApp } from '../../src/api/app.js';
 import { installAuth } from '../../src/api/plugins/auth.js';
+import { createAuthCache } from '../../src/app/keys/auth-cache.js';
 import { effectsRoutes } from '../../src/api/routes/effects-routes.js';
 import { jobsRoutes } from '../../src/api/routes/jobs-routes.js';
 import { modelsRoutes } from '../../src/api/routes/models-routes.js';
@@ -62,7 +63,7 @@ export async function startReportApp(): Promise<ReportApp> {
     const opts = { models, queries, secret: LINK_SECRET };
     await app.register(
       async (v1) => {
-        installAuth(v1, keysDeps.keys);
+        installAuth(v1, createAuthCache(keysDeps.keys));
         if (!hasModels) {
           await v1.register(modelsRoutes, { models });
           await v1.register(jobsRoutes, { models });

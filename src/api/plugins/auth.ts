@@ -4,10 +4,10 @@
  * It runs at onRequest, before the body is read, so a refused request writes nothing.
  */
 import type { FastifyInstance, FastifyRequest } from 'fastify';
-import { authenticate, requireScope, type Principal } from '../../app/keys/authenticate.js';
+import type { AuthCache } from '../../app/keys/auth-cache.js';
+import { requireScope, type Principal } from '../../app/keys/authenticate.js';
 import type { Scope } from '../../app/keys/key-secret.js';
 import { apiError } from '../../errors/catalogue.js';
-import type { KeysRepository } from '../../store/keys-repository.js';
 
 declare module 'fastify' {
   interface FastifyRequest {
@@ -32,10 +32,10 @@ export function bearerKey(request: FastifyRequest): string {
 }
 
 /** Add the auth hook to an encapsulated /v1 context. */
-export function installAuth(v1: FastifyInstance, keys: KeysRepository): void {
+export function installAuth(v1: FastifyInstance, auth: AuthCache): void {
   v1.decorateRequest('principal', null as unknown as Principal);
   v1.addHook('onRequest', async (request) => {
-    const principal = await authenticate(keys, bearerKey(request));
+    const principal = await auth.authenticate(bearerKey(request));
     request.principal = principal;
     request.log = request.log.child({ workspaceId: principal.workspaceId, keyPrefix: principal.keyPrefix });
     const scope = request.routeOptions.config.scope ?? (request.method === 'GET' || request.method === 'HEAD' ? 'read' : 'write');

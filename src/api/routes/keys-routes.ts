@@ -3,12 +3,13 @@
  * /v1/workspace (read scope): the caller's own workspace.
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import type { AuthCache } from '../../app/keys/auth-cache.js';
 import { createKey, listKeys, revokeKey, type KeyDeps } from '../../app/keys/key-use-cases.js';
 import { apiError } from '../../errors/catalogue.js';
 import { withProblems } from '../schemas/problem.js';
 import { CreateKeyBody, CreatedKey, KeyIdParams, KeyList, KeyView, WorkspaceView } from '../schemas/keys.js';
 
-export const keysRoutes: FastifyPluginAsyncZod<{ deps: KeyDeps }> = async (app, { deps }) => {
+export const keysRoutes: FastifyPluginAsyncZod<{ deps: KeyDeps; auth: AuthCache }> = async (app, { deps, auth }) => {
   app.get(
     '/keys',
     { config: { scope: 'admin' }, schema: { tags: ['keys'], summary: 'List the keys of this workspace (prefixes only)', response: withProblems({ 200: KeyList }) } },
@@ -32,9 +33,13 @@ export const keysRoutes: FastifyPluginAsyncZod<{ deps: KeyDeps }> = async (app, 
     '/keys/:id',
     {
       config: { scope: 'admin' },
-      schema: { tags: ['keys'], summary: 'Revoke a key (it stops working at once)', params: KeyIdParams, response: withProblems({ 200: KeyView }) },
+      schema: { tags: ['keys'], summary: 'Revoke a key (it stops working at once here, and within a second on other api replicas)', params: KeyIdParams, response: withProblems({ 200: KeyView }) },
     },
-    async (request) => revokeKey(deps, request.principal.workspaceId, request.params.id),
+    async (request) => {
+      const revoked = await revokeKey(deps, request.principal.workspaceId, request.params.id);
+      auth.forgetKey(revoked.id);
+      return revoked;
+    },
   );
 
   app.get(

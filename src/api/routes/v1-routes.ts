@@ -6,6 +6,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { DatasetsService } from '../../app/datasets/datasets-service.js';
 import type { KeyDeps } from '../../app/keys/key-use-cases.js';
 import type { Config } from '../../config.js';
+import { createAuthCache } from '../../app/keys/auth-cache.js';
 import { installAuth } from '../plugins/auth.js';
 import type { AppMetrics } from '../plugins/metrics.js';
 import type { ModelsService } from '../../app/models/models-service.js';
@@ -31,8 +32,9 @@ export interface V1Options {
 
 export const v1Routes: FastifyPluginAsyncZod<V1Options> = async (v1, opts) => {
   v1.removeContentTypeParser('text/plain');
-  installAuth(v1, opts.deps.keys);
-  await v1.register(keysRoutes, { deps: opts.deps });
+  const auth = createAuthCache(opts.deps.keys);
+  installAuth(v1, auth);
+  await v1.register(keysRoutes, { deps: opts.deps, auth });
   await v1.register(datasetsRoutes, { service: opts.datasets, config: opts.config, metrics: opts.metrics });
   await v1.register(modelsRoutes, { models: opts.models });
   await v1.register(jobsRoutes, { models: opts.models });
