@@ -22,7 +22,7 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { createRequire } from 'node:module';
 import { createServer } from 'node:net';
@@ -31,6 +31,7 @@ import { join } from 'node:path';
 import { Redis } from 'ioredis';
 import { generateScenario, scenarioCsv, SCENARIO_TIERS, SCENARIO_TRUE_EDGES } from '../src/demo/scenario.js';
 import { dropSchema, openDb } from '../src/store/open-db.js';
+import { updateSection } from './docs-section.js';
 
 /** The part of autocannon's interface used here (the package ships no types). */
 interface AutocannonResult {
@@ -282,11 +283,7 @@ async function main(): Promise<void> {
 
 /** Replace (or append) the "## API" section of docs/benchmarks.md. */
 function writeSection(o: Record<string, unknown>): void {
-  const path = 'docs/benchmarks.md';
-  const text = existsSync(path) ? readFileSync(path, 'utf8') : '# Benchmarks\n';
   const section = [
-    '## API',
-    '',
     `Command: \`${o.command}\` (bench/api.ts; results in bench/results/api.json). Back end: ${backend}.`,
     `Run ${o.date}, ${o.cpus} cores shared with other work; load average (1/5/15 min) before the load ${o.load_average_before}, after ${o.load_average_after}.`,
     '',
@@ -301,15 +298,7 @@ function writeSection(o: Record<string, unknown>): void {
     `Target: at least 1,000 warm requests per second with p99 under 50 ms while a refit runs — ${Number(o.warm_rps) >= 1000 && Number(o.p99_ms) < 50 ? 'met' : 'not met'} in this run.`,
     '',
   ].join('\n');
-  const start = text.indexOf('\n## API\n');
-  let next: string;
-  if (start >= 0) {
-    const after = text.indexOf('\n## ', start + 1);
-    next = text.slice(0, start + 1) + section + (after >= 0 ? text.slice(after + 1) : '');
-  } else {
-    next = text.replace(/\n*$/, '\n\n') + section;
-  }
-  writeFileSync(path, next);
+  updateSection('docs/benchmarks.md', '## API', section);
 }
 
 main().then(

@@ -23,7 +23,6 @@
  * Writes bench/results/effects.json and the "## Effects" section of docs/benchmarks.md.
  */
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
-import { dirname } from 'node:path';
 import { runBootstrap } from '../src/core/discovery/bootstrap.js';
 import { EffectCache, estimateEffect } from '../src/core/effects/index.js';
 import { makeFrame, type Column, type Frame } from '../src/core/frame/frame.js';
@@ -33,6 +32,7 @@ import { lstsq } from '../src/core/linalg/lstsq.js';
 import { Rng } from '../src/core/random/rng.js';
 import { fitFixedGraph, fitModel } from '../src/core/scm/fit-model.js';
 import { generateDataset, simulateDo, type SyntheticScm } from '../src/core/synthetic/index.js';
+import { updateSection } from './docs-section.js';
 
 /** IHDP replication k: shared/data beside the checkout (as CI lays it out), else /work/shared/data. */
 function ihdpFile(k: number): string {
@@ -391,25 +391,6 @@ async function main(): Promise<void> {
   );
 }
 
-/** Replace (or append) one "## Heading" section of a markdown file; creates it with "# Benchmarks" when missing. */
-function updateSection(path: string, heading: string, body: string): void {
-  mkdirSync(dirname(path), { recursive: true });
-  const text = existsSync(path) ? readFileSync(path, 'utf8') : '# Benchmarks\n';
-  const lines = text.split('\n');
-  const start = lines.findIndex((l) => l.trim() === heading);
-  const block = [heading, '', body.trimEnd(), ''];
-  let out: string[];
-  if (start < 0) {
-    out = [...lines];
-    while (out.length > 0 && out[out.length - 1].trim() === '') out.pop();
-    out.push('', ...block);
-  } else {
-    let end = start + 1;
-    while (end < lines.length && !/^## /.test(lines[end])) end++;
-    out = [...lines.slice(0, start), ...block, ...lines.slice(end)];
-  }
-  writeFileSync(path, out.join('\n').replace(/\n*$/, '\n'));
-}
 
 main().catch((e) => {
   console.error(e);

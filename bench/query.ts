@@ -10,9 +10,8 @@
  * fused multiply-add over Float64Arrays) on the same machine.
  * Writes bench/results/query.json and the "## Queries" section of docs/benchmarks.md.
  */
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { availableParallelism, loadavg } from 'node:os';
-import { dirname } from 'node:path';
 import { EffectCache, estimateEffect, upliftTable } from '../src/core/effects/index.js';
 import type { Graph } from '../src/core/graph/graph.js';
 import { topologicalOrder } from '../src/core/graph/topological-order.js';
@@ -23,6 +22,7 @@ import { fitModel } from '../src/core/scm/fit-model.js';
 import { resolveArm } from '../src/core/effects/arms.js';
 import { simulateArms, simulationScratch } from '../src/core/effects/counterfactual.js';
 import { generateDataset } from '../src/core/synthetic/index.js';
+import { updateSection } from './docs-section.js';
 
 const P = 20;
 const GRAPHS = 10;
@@ -279,24 +279,5 @@ function main(): void {
   );
 }
 
-/** Replace (or append) one "## Heading" section of a markdown file; creates it with "# Benchmarks" when missing. */
-function updateSection(path: string, heading: string, body: string): void {
-  mkdirSync(dirname(path), { recursive: true });
-  const text = existsSync(path) ? readFileSync(path, 'utf8') : '# Benchmarks\n';
-  const lines = text.split('\n');
-  const start = lines.findIndex((l) => l.trim() === heading);
-  const block = [heading, '', body.trimEnd(), ''];
-  let out: string[];
-  if (start < 0) {
-    out = [...lines];
-    while (out.length > 0 && out[out.length - 1].trim() === '') out.pop();
-    out.push('', ...block);
-  } else {
-    let end = start + 1;
-    while (end < lines.length && !/^## /.test(lines[end])) end++;
-    out = [...lines.slice(0, start), ...block, ...lines.slice(end)];
-  }
-  writeFileSync(path, out.join('\n').replace(/\n*$/, '\n'));
-}
 
 main();

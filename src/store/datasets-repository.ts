@@ -167,13 +167,21 @@ export function createDatasetsRepository(db: Db) {
     },
 
     /** Delete a dataset (catalog rows and its row table). False when it is not in this workspace. */
-    async remove(workspaceId: string, id: string, tx: Db = db): Promise<boolean> {
-      if (!UUID.test(id) || !UUID.test(workspaceId)) return false;
+    /**
+     * Delete a dataset and its row table. 'in-use' (nothing deleted) while models use it: the
+     * dataset row is locked first, so no model can be created on it between count and delete.
+     */
+    async remove(workspaceId: string, id: string, tx: Db = db): Promise<{ outcome: 'removed' | 'missing' | 'in-use'; models: number }> {
+      if (!UUID.test(id) || !UUID.test(workspaceId)) return { outcome: 'missing', models: 0 };
       return tx.transaction(async (t) => {
+        const found = await t.query('SELECT 1 FROM datasets WHERE id = $1 AND workspace_id = $2 FOR UPDATE', [id, workspaceId]);
+        if (found.rows.length === 0) return { outcome: 'missing' as const, models: 0 };
+        const using = await t.query<{ n: number }>('SELECT count(*)::int AS n FROM models WHERE dataset_id = $1', [id]);
+        const models = Number(using.rows[0].n);
+        if (models > 0) return { outcome: 'in-use' as const, models };
         const r = await t.query<{ table_name: string }>('DELETE FROM datasets WHERE id = $1 AND workspace_id = $2 RETURNING table_name', [id, workspaceId]);
-        if (r.rows.length === 0) return false;
         await t.query(`DROP TABLE IF EXISTS ${ident(r.rows[0].table_name)}`);
-        return true;
+        return { outcome: 'removed' as const, models: 0 };
       });
     },
 

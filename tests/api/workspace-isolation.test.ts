@@ -192,6 +192,16 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     expect(stillB.json().versions).toHaveLength(1);
   });
 
+  it('refuses to delete a dataset that a model uses (409), and leaves everything in place', async () => {
+    const sets = await t.app.inject({ method: 'GET', url: '/v1/datasets', headers: bearer(t.b.adminKey) });
+    const used = sets.json().datasets.find((d: { name: string }) => d.name === 'b-scenario').id;
+    const before = await snapshot(t.db);
+    const res = await t.app.inject({ method: 'DELETE', url: `/v1/datasets/${used}`, headers: bearer(t.b.adminKey) });
+    expect(res.statusCode).toBe(409);
+    expect(res.json().type).toBe('ERR_MODEL_DATASET_IN_USE');
+    expect(await snapshot(t.db)).toEqual(before);
+  });
+
   it("puts what A creates in A's workspace only", async () => {
     const created = await t.app.inject({
       method: 'POST',

@@ -1,4 +1,5 @@
 import { dataError } from '../../errors/data-errors.js';
+import { modelError } from '../../errors/model-errors.js';
 import { mergeColumnStats } from './column-stats.js';
 import type { DatasetsDeps } from './create-dataset.js';
 import type { DatasetDetail, DatasetSummary } from './types.js';
@@ -29,7 +30,9 @@ export async function describeDataset(deps: DatasetsDeps, workspaceId: string, d
   };
 }
 
-/** Delete a dataset and its rows; 404 error when not in this workspace. */
+/** Delete a dataset and its rows; 404 when not in this workspace, 409 while models use it. */
 export async function deleteDataset(deps: DatasetsDeps, workspaceId: string, datasetId: string): Promise<void> {
-  if (!(await deps.repo.remove(workspaceId, datasetId))) throw dataError('ERR_DATA_UNKNOWN_DATASET', { id: datasetId });
+  const r = await deps.repo.remove(workspaceId, datasetId);
+  if (r.outcome === 'missing') throw dataError('ERR_DATA_UNKNOWN_DATASET', { id: datasetId });
+  if (r.outcome === 'in-use') throw modelError('ERR_MODEL_DATASET_IN_USE', { id: datasetId, count: r.models });
 }

@@ -19,7 +19,7 @@ import type { ModelSpec } from './model-spec.js';
 import type { ReplicateOutput } from '../../jobs/compute-tasks.js';
 import { runCompute } from '../../jobs/compute-pool.js';
 import { JobCancelledError, type JobProgress, type JobRun, type QueuePort } from '../../jobs/queue-port.js';
-import { CancelledJobError, type JobsRepository } from '../../store/jobs-repository.js';
+import { CancelledJobError, type JobRow, type JobsRepository } from '../../store/jobs-repository.js';
 import type { ModelsRepository } from '../../store/models-repository.js';
 
 export interface FitHandlerDeps {
@@ -47,7 +47,7 @@ export function registerFitHandlers(deps: FitHandlerDeps): void {
   };
 
   /** The live job and its model's spec, or null when the fit should not go on. */
-  const current = async (run: JobRun<FitStartData>): Promise<{ spec: ModelSpec } | null> => {
+  const current = async (run: JobRun<FitStartData>): Promise<{ spec: ModelSpec; job: JobRow } | null> => {
     const job = await jobs.findById(run.data.jobId);
     if (!job || job.cancelRequested || job.state === 'cancelled') {
       if (job && job.state !== 'cancelled') await jobs.markCancelled(job.id);
@@ -56,7 +56,7 @@ export function registerFitHandlers(deps: FitHandlerDeps): void {
     if (job.state === 'succeeded' || job.state === 'failed') return null;
     const model = await models.find(run.data.workspaceId, run.data.modelId);
     if (!model) return null;
-    return { spec: model.spec as ModelSpec };
+    return { spec: model.spec as ModelSpec, job };
   };
 
   /** Record a failed try; the last try fails the job with a readable reason. */
@@ -162,8 +162,8 @@ export function registerFitHandlers(deps: FitHandlerDeps): void {
         { signal: run.signal, inline: deps.inlineCompute },
       );
       await report(run, { stage: 'saving version', percent: PERCENT.compiled });
-      const job = await jobs.findById(d.jobId);
-      const started = job?.startedAt ? Date.parse(job.startedAt) : Date.now();
+      // The start job set started_at; a retried finish keeps measuring from the first try.
+      const started = live.job.startedAt ? Date.parse(live.job.startedAt) : Date.now();
       const committed = await models.commitVersion({
         id: crypto.randomUUID(),
         modelId: d.modelId,

@@ -62,8 +62,23 @@ export interface AipwInput {
   readonly reference: ArmValue;
 }
 
+/** How a cross-fitted AIPW was computed: shared by the estimate and the per-unit scores. */
+export interface AipwFitInfo {
+  /** Rows used (complete cases) and rows dropped for missing cells. */
+  readonly n: number;
+  readonly dropped: number;
+  readonly folds: number;
+  readonly propensityModel: 'logistic' | 'softmax' | 'one-vs-rest';
+  readonly outcomeModel: OutcomeFamily;
+  /** Share of units whose propensity for a contrasted arm was clipped. */
+  readonly clippedShare: number;
+  /** Overlap of each contrasted arm (cross-fitted propensities). */
+  readonly overlap: readonly ArmOverlap[];
+  readonly adjustment: readonly string[];
+}
+
 /** Result of `aipw`. */
-export interface AipwResult {
+export interface AipwResult extends AipwFitInfo {
   readonly ate: number;
   readonly se: number;
   readonly lower: number;
@@ -74,37 +89,16 @@ export interface AipwResult {
   readonly meanReference: number;
   readonly seArm: number;
   readonly seReference: number;
-  /** Rows used (complete cases) and rows dropped for missing cells. */
-  readonly n: number;
-  readonly dropped: number;
-  readonly folds: number;
-  readonly propensityModel: 'logistic' | 'softmax' | 'one-vs-rest';
-  readonly outcomeModel: OutcomeFamily;
-  /** Share of units whose propensity for arm a or b was clipped. */
-  readonly clippedShare: number;
-  /** Overlap of arm a and arm b (cross-fitted propensities). */
-  readonly overlap: readonly ArmOverlap[];
-  readonly adjustment: readonly string[];
 }
 
 /** Per-unit AIPW scores for several arms from one set of cross-fitted nuisances. */
-export interface AipwScores {
+export interface AipwScores extends AipwFitInfo {
   /** Arm labels, in the order of `arms` given. */
   readonly arms: readonly string[];
   /** A × n scores ψ_c,i (arm-major); mean of row c estimates E[Y | do(T = arm c)]. */
   readonly scores: Float64Array;
   /** Frame row of each scored unit (complete cases). */
   readonly rows: Int32Array;
-  readonly n: number;
-  readonly dropped: number;
-  readonly folds: number;
-  readonly propensityModel: 'logistic' | 'softmax' | 'one-vs-rest';
-  readonly outcomeModel: OutcomeFamily;
-  /** Share of units with a clipped propensity for at least one listed arm. */
-  readonly clippedShare: number;
-  /** Overlap of each listed arm (cross-fitted propensities). */
-  readonly overlap: readonly ArmOverlap[];
-  readonly adjustment: readonly string[];
 }
 
 /**

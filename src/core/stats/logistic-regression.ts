@@ -1,5 +1,6 @@
 import type { Matrix } from '../linalg/matrix.js';
 import { cholesky, choleskySolve } from '../linalg/cholesky.js';
+import { dampedNewtonStep } from './damped-newton.js';
 
 /** Options of `logisticRegression`. */
 export interface LogisticOptions {
@@ -102,22 +103,9 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
       hess[j * q + j] += ridge;
     }
     solveWithJitter(hm, grad, step);
-    let t = 1;
-    let next = obj;
-    for (let half = 0; half < 30; half++) {
-      for (let j = 0; j < q; j++) trial[j] = theta[j] + t * step[j];
-      next = objective(trial);
-      if (next >= obj - 1e-12 * Math.abs(obj)) break;
-      t *= 0.5;
-    }
-    let maxStep = 0;
-    for (let j = 0; j < q; j++) {
-      maxStep = Math.max(maxStep, Math.abs(trial[j] - theta[j]));
-      theta[j] = trial[j];
-    }
-    const gain = next - obj;
-    obj = next;
-    if (maxStep < tol || (gain >= 0 && gain < 1e-14 * (1 + Math.abs(obj)) && maxStep < 1e-6)) converged = true;
+    const moved = dampedNewtonStep(theta, step, trial, obj, objective, tol);
+    obj = moved.obj;
+    if (moved.converged) converged = true;
   }
 
   let pen = 0;
