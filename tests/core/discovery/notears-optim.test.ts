@@ -82,6 +82,45 @@ describe('OWL-QN', () => {
     for (let c = 0; c < p; c++) expect(b0[c]).toBeCloseTo(ref.get(c, 0), 6);
   });
 
+  it('from a zero start with pinned coordinates reaches the lasso optimum of the free ones (checked by KKT)', () => {
+    // The learner's case: W = 0, forbidden entries pinned, L1 on the rest. A wrong orthant or
+    // pseudo-gradient rule would stall at 0; the KKT conditions below say where the optimum is.
+    const n = 300;
+    const p = 5;
+    const rng = Rng.create(21);
+    const X = new Float64Array(n * p);
+    const y = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      const z = rng.normal();
+      for (let c = 0; c < p; c++) X[r * p + c] = 0.7 * z + rng.normal();
+      y[r] = 0.9 * X[r * p] + 1.2 * X[r * p + 1] - 0.6 * X[r * p + 3] + rng.normal();
+    }
+    const f = (b: Float64Array, g: Float64Array): number => {
+      g.fill(0);
+      let s = 0;
+      for (let r = 0; r < n; r++) {
+        let e = -y[r];
+        for (let c = 0; c < p; c++) e += X[r * p + c] * b[c];
+        s += (0.5 * e * e) / n;
+        for (let c = 0; c < p; c++) g[c] += (e * X[r * p + c]) / n;
+      }
+      return s;
+    };
+    const lam = 0.1;
+    const fixed = Uint8Array.from([0, 1, 0, 0, 0]); // the strongest predictor is pinned at 0
+    const b = new Float64Array(p);
+    const res = minimiseOwlqn(f, b, { l1: lam, fixed, fTol: 1e-15, gradTol: 1e-9 });
+    expect(res.converged).toBe(true);
+    expect(b[1]).toBe(0);
+    expect(Math.abs(b[0])).toBeGreaterThan(0.5);
+    const g = new Float64Array(p);
+    f(b, g);
+    for (const c of [0, 2, 3, 4]) {
+      if (b[c] === 0) expect(Math.abs(g[c])).toBeLessThanOrEqual(lam + 1e-7);
+      else expect(g[c] + lam * Math.sign(b[c])).toBeCloseTo(0, 6);
+    }
+  });
+
   it('keeps fixed coordinates at their starting value', () => {
     const x = Float64Array.from([0, 3]);
     minimiseOwlqn(
