@@ -88,6 +88,7 @@ function validate(o: Partial<LinearNotearsOptions>): LinearNotearsOptions {
   if (!(v.hTol > 0) || !(v.rhoMax > 1)) throw new RangeError('linear-notears: hTol must be > 0 and rhoMax > 1');
   if (!(v.innerTol > 0)) throw new RangeError(`linear-notears: innerTol must be > 0, got ${v.innerTol}`);
   if (!(v.maxOuter >= 1) || !(v.maxInner >= 1)) throw new RangeError('linear-notears: maxOuter and maxInner must be ≥ 1');
+  if (typeof v.localSearch !== 'boolean') throw new TypeError(`linear-notears: localSearch must be true or false, got ${String(v.localSearch)}`);
   return v;
 }
 
