@@ -178,6 +178,28 @@ describe('linear-notears reaches the optimum of its score', () => {
     }
   });
 
+  it('tiers that fix the whole order: one outer iteration with h = 0 is right, W is the per-node lasso in that order', () => {
+    // With every variable in its own tier no cycle is allowed, h(W∘W) is 0 for every feasible W,
+    // and the problem is one lasso per node on its predecessors (solved here by KKT enumeration).
+    const n = 800;
+    const rng = Rng.create(17);
+    const cols = [0, 1, 2].map(() => new Float64Array(n));
+    for (let r = 0; r < n; r++) {
+      cols[0][r] = rng.normal();
+      cols[1][r] = 0.9 * cols[0][r] + rng.normal();
+      cols[2][r] = -0.7 * cols[1][r] + 0.4 * cols[0][r] + rng.normal();
+    }
+    const frame = frameOf(standardised(cols));
+    const S = covariance(frame);
+    const k = compileKnowledge(['x0', 'x1', 'x2'], { tiers: [['x0'], ['x1'], ['x2']] });
+    const res = linearNotears.learn(frame, k, { threshold: 0 }, Rng.create(1));
+    expect(res.notes[0]).toMatch(/^augmented Lagrangian: 1 outer iterations/);
+    for (let j = 1; j < 3; j++) {
+      const fit = lassoKkt(S, j, [0, 1].slice(0, j), 0.1);
+      for (let i = 0; i < j; i++) expect(res.weights![i * 3 + j]).toBeCloseTo(fit.w.get(i) ?? 0, 6);
+    }
+  });
+
   it('the front door with standardisation gives the pair an edge', () => {
     const frame = frameOf(pair(500, 2, 0.8, 0.6));
     const res = learn(frame, {}, { learner: 'linear-notears' });
