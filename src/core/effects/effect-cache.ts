@@ -7,11 +7,12 @@
  */
 import type { Frame } from '../frame/frame.js';
 import type { AdjustmentSet } from '../graph/adjustment.js';
+import { isBackdoorAdjustmentSet } from '../graph/adjustment.js';
 import type { CompiledModel } from '../scm/compiled-model.js';
 import { KIND_CATEGORICAL } from '../scm/compiled-model.js';
 import type { InterventionValue } from '../scm/intervention.js';
 import { InterventionError, valueCode, variableIndexOf } from '../scm/intervention.js';
-import { pathProbability } from '../scm/model-access.js';
+import { graphAt, pathProbability } from '../scm/model-access.js';
 import type { Arm, ResolvedArm } from './arms.js';
 import { armKey, resolveArm } from './arms.js';
 import { simulateArms, simulationScratch, type SimulationScratch } from './counterfactual.js';
@@ -88,19 +89,37 @@ export class EffectCache {
     return entry;
   }
 
-  /** Cross-check per graph for a simulated contrast (computed once, shared by graphs with the same adjustment set). */
+  /**
+   * Cross-check per graph for a simulated contrast (computed once, shared by graphs with the
+   * same adjustment set). Graphs are visited from the most probable down; each takes the first
+   * set already scored for this contrast that satisfies the backdoor criterion in it, else its
+   * own optimal set (graph/adjustment.ts). A set chosen for a more probable graph is valid, not
+   * necessarily the most efficient, in the graph that reuses it — the price of fitting the
+   * nuisance models once for many graphs (a bootstrap set's graphs differ in a few edges, so a
+   * handful of sets usually serve all of them). Such entries say 'shared' as their kind.
+   */
   crossChecks(u: UnitOutcomes): CrossCheckEntry[] {
     const model = this.model;
     const key = `${u.treatment}|${u.outcome}|${u.outcomeLevel}|${u.arms.map((a) => `${a.action}:${a.amount}:${a.label}`).join('|')}`;
     const hit = this.checks.get(key);
     if (hit) return hit;
     if (this.frame === null) this.frame = referenceFrame(model);
-    const out: CrossCheckEntry[] = [];
-    for (let g = 0; g < model.nGraphs; g++) {
-      const adj: AdjustmentSet = graphAdjustment(model, g, u.treatment, u.outcome);
-      if (!adj.causalPath) {
-        out.push({ adjustment: adj, scores: null, note: `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero` });
+    const G = model.nGraphs;
+    const out = new Array<CrossCheckEntry>(G);
+    const order = Array.from({ length: G }, (_, g) => g).sort((a, b) => model.graphWeights[b] - model.graphWeights[a] || a - b);
+    const scored: AdjustmentSet[] = [];
+    for (const g of order) {
+      const own: AdjustmentSet = graphAdjustment(model, g, u.treatment, u.outcome);
+      if (!own.causalPath) {
+        out[g] = { adjustment: own, scores: null, note: `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero` };
         continue;
+      }
+      let adj = own;
+      if (own.valid) {
+        const graph = graphAt(model, g);
+        const reuse = scored.find((z) => sameSet(z.set, own.set) || isBackdoorAdjustmentSet(graph, u.treatment, u.outcome, z.set));
+        if (reuse === undefined) scored.push(own);
+        else if (!sameSet(reuse.set, own.set)) adj = { ...own, set: reuse.set, names: reuse.names, kind: 'shared' };
       }
       const sKey = `${key}#${adj.set.join(',')}`;
       let s = this.scoreMemo.get(sKey);
@@ -108,7 +127,7 @@ export class EffectCache {
         s = computeScores(model, this.frame, u.treatment, u.outcome, u.outcomeLevel, u.arms, adj.names);
         this.scoreMemo.set(sKey, s);
       }
-      out.push({ adjustment: adj, scores: s.scores, note: s.note });
+      out[g] = { adjustment: adj, scores: s.scores, note: s.note };
     }
     if (this.checks.size >= MAX_CACHED_CONTRASTS) {
       const oldest = this.checks.keys().next().value as string;
@@ -118,4 +137,8 @@ export class EffectCache {
     this.checks.set(key, out);
     return out;
   }
+}
+
+function sameSet(a: readonly number[], b: readonly number[]): boolean {
+  return a.length === b.length && a.every((v, i) => v === b[i]);
 }

@@ -31,6 +31,7 @@ import type { OutcomeFamily } from './outcome-model.js';
 import { fitOutcome, predictOutcome } from './outcome-model.js';
 import type { ArmOverlap } from './overlap.js';
 import { armOverlap } from './overlap.js';
+import type { PropensityModel } from './propensity.js';
 import { fitPropensity, predictPropensity } from './propensity.js';
 
 /** Options of `aipw`, with defaults. */
@@ -162,9 +163,13 @@ export function aipwScores(
   // Folds stratified by arm: shuffle each arm's rows, deal them round-robin.
   const fold = new Int32Array(n);
   if (K > 1) {
+    const byArm = new Int32Array(n);
+    const start = new Int32Array(k + 1);
+    for (let c = 0; c < k; c++) start[c + 1] = start[c] + perArm[c];
+    const fill = start.slice(0, k);
+    for (let r = 0; r < n; r++) byArm[fill[codes[r]]++] = r;
     for (let c = 0; c < k; c++) {
-      const idx: number[] = [];
-      for (let r = 0; r < n; r++) if (codes[r] === c) idx.push(r);
+      const idx = byArm.subarray(start[c], start[c + 1]);
       rng.shuffle(idx);
       for (let i = 0; i < idx.length; i++) fold[idx[i]] = i % K;
     }
@@ -172,29 +177,33 @@ export function aipwScores(
 
   const prop = new Float64Array(n * k);
   const m = new Float64Array(A * n);
+  let previous: PropensityModel | null = null;
+  const train = new Int32Array(n);
+  const test = new Int32Array(n);
   for (let f = 0; f < K; f++) {
-    const train: number[] = [];
-    const test: number[] = [];
+    let nTrain = 0;
+    let nTest = 0;
     for (let r = 0; r < n; r++) {
-      if (K === 1 || fold[r] !== f) train.push(r);
-      if (K === 1 || fold[r] === f) test.push(r);
+      if (K === 1 || fold[r] !== f) train[nTrain++] = r;
+      if (K === 1 || fold[r] === f) test[nTest++] = r;
     }
-    const xTrain = subRows(x, train);
-    const cTrain = new Int32Array(train.length);
-    for (let i = 0; i < train.length; i++) cTrain[i] = codes[train[i]];
-    const pm = fitPropensity(xTrain, cTrain, k, k > 2 && options.propensity !== 'softmax' ? armCodes : null);
-    const xTest = subRows(x, test);
+    const trainRows = train.subarray(0, nTrain);
+    const testRows = test.subarray(0, nTest);
+    const xTrain = subRows(x, trainRows);
+    const cTrain = new Int32Array(nTrain);
+    for (let i = 0; i < nTrain; i++) cTrain[i] = codes[trainRows[i]];
+    const pm = fitPropensity(xTrain, cTrain, k, k > 2 && options.propensity !== 'softmax' ? armCodes : null, previous);
+    previous = pm;
+    const xTest = subRows(x, testRows);
     const pTest = predictPropensity(pm, xTest);
-    for (let i = 0; i < test.length; i++) {
-      const r = test[i];
-      for (let c = 0; c < k; c++) prop[r * k + c] = pTest[i * k + c];
-    }
+    for (let i = 0; i < nTest; i++) for (let c = 0; c < k; c++) prop[testRows[i] * k + c] = pTest[i * k + c];
+    const trainA = new Int32Array(nTrain);
     for (let a = 0; a < A; a++) {
-      const trainA: number[] = [];
-      for (const r of train) if (codes[r] === armCodes[a]) trainA.push(r);
-      const om = fitOutcome(x, y, Int32Array.from(trainA), family);
+      let nA = 0;
+      for (let i = 0; i < nTrain; i++) if (cTrain[i] === armCodes[a]) trainA[nA++] = trainRows[i];
+      const om = fitOutcome(x, y, trainA.subarray(0, nA), family);
       const pred = predictOutcome(om, xTest);
-      for (let i = 0; i < test.length; i++) m[a * n + test[i]] = pred[i];
+      for (let i = 0; i < nTest; i++) m[a * n + testRows[i]] = pred[i];
     }
   }
 
@@ -318,7 +327,7 @@ function armKey(a: ArmValue): string {
   return typeof a === 'string' ? `s:${a}` : `n:${a}`;
 }
 
-function subRows(x: Matrix, idx: readonly number[]): Matrix {
+function subRows(x: Matrix, idx: Int32Array): Matrix {
   const p = x.cols;
   const data = new Float64Array(idx.length * p);
   for (let i = 0; i < idx.length; i++) {

@@ -18,6 +18,9 @@ export interface PropensityModel {
   readonly params: Float64Array;
   /** Arms modelled one-vs-rest (each row a separate logistic); null for the joint softmax form. */
   readonly oneVsRest: readonly number[] | null;
+  /** Rows the model was fitted on, and per logistic row its last negative Hessian (for warm starts). */
+  readonly n: number;
+  readonly hessians: ReadonlyArray<Float64Array | null>;
 }
 
 /** Newton settings for propensities: a step below 1e-5 changes fitted propensities by well under 1e-4, far below what weighting needs. */
@@ -26,37 +29,102 @@ const NEWTON = { maxIter: 30, tol: 1e-5 } as const;
 /** Small ridge keeping the fit finite under (quasi-)separation; common practice. */
 const PROPENSITY_RIDGE = 1e-4;
 
-/** Fit P(T = c | x) for codes 0..k-1 on the rows of x (codes aligned with rows). */
-export function fitPropensity(x: Matrix, codes: Int32Array, k: number, arms: readonly number[] | null = null): PropensityModel {
+/**
+ * Fit P(T = c | x) for codes 0..k-1 on the rows of x (codes aligned with rows).
+ *
+ * The binary and one-vs-rest fits start from the intercept-only model, whose Hessian is
+ * ȳ(1 − ȳ)·X̃ᵀX̃ (X̃ = [1, x]): the cross-product X̃ᵀX̃ is computed once and shared by every arm,
+ * so the first Newton step costs no O(n·p²) pass of its own. `warm`, a model of the same form
+ * fitted on other rows (another cross-fitting fold), replaces that start: its coefficients and
+ * its last Hessian (rescaled by the row counts) start each fit near the optimum, which is then
+ * reached in a few O(n·p) passes. The optimum is the same either way; only the path differs.
+ */
+export function fitPropensity(
+  x: Matrix,
+  codes: Int32Array,
+  k: number,
+  arms: readonly number[] | null = null,
+  warm: PropensityModel | null = null,
+): PropensityModel {
   const p = x.cols;
-  const params = new Float64Array(k * (1 + p));
-  if (k === 2) {
-    const y = new Float64Array(x.rows);
-    for (let r = 0; r < x.rows; r++) y[r] = codes[r] === 1 ? 1 : 0;
-    const fit = logisticRegression(x, y, { ridge: PROPENSITY_RIDGE, ...NEWTON });
-    params[1 + p] = fit.intercept;
-    for (let j = 0; j < p; j++) params[1 + p + 1 + j] = fit.coef[j];
-    return { k, p, params, oneVsRest: null };
-  }
-  if (arms !== null) {
-    const y = new Float64Array(x.rows);
-    const listed = [...new Set(arms)];
+  const q = p + 1;
+  const n = x.rows;
+  const params = new Float64Array(k * q);
+  const hessians: Array<Float64Array | null> = new Array<Float64Array | null>(k).fill(null);
+  if (k === 2 || arms !== null) {
+    const listed = k === 2 ? [1] : [...new Set(arms)];
+    let gram: Float64Array | null = null;
+    const y = new Float64Array(n);
     for (const c of listed) {
-      for (let r = 0; r < x.rows; r++) y[r] = codes[r] === c ? 1 : 0;
-      const fit = logisticRegression(x, y, { ridge: PROPENSITY_RIDGE, ...NEWTON });
-      params[c * (1 + p)] = fit.intercept;
-      for (let j = 0; j < p; j++) params[c * (1 + p) + 1 + j] = fit.coef[j];
+      let ones = 0;
+      for (let r = 0; r < n; r++) ones += y[r] = codes[r] === c ? 1 : 0;
+      let start: Float64Array | undefined;
+      let startHessian: Float64Array | undefined;
+      const w = warmRow(warm, c, p, n);
+      if (w !== null) {
+        start = w.start;
+        startHessian = w.hessian;
+      } else if (ones > 0 && ones < n) {
+        gram ??= crossProduct(x);
+        const ybar = ones / n;
+        start = new Float64Array(q);
+        start[0] = Math.log(ybar / (1 - ybar));
+        startHessian = new Float64Array(q * q);
+        const v = ybar * (1 - ybar);
+        for (let i = 0; i < q * q; i++) startHessian[i] = v * gram[i];
+        for (let j = 1; j < q; j++) startHessian[j * q + j] += PROPENSITY_RIDGE;
+      }
+      const fit = logisticRegression(x, y, { ridge: PROPENSITY_RIDGE, ...NEWTON, start, startHessian });
+      params[c * q] = fit.intercept;
+      for (let j = 0; j < p; j++) params[c * q + 1 + j] = fit.coef[j];
+      hessians[c] = fit.hessian;
     }
-    return { k, p, params, oneVsRest: listed };
+    return { k, p, params, oneVsRest: k === 2 ? null : listed, n, hessians };
   }
-  const y = new Float64Array(x.rows);
-  for (let r = 0; r < x.rows; r++) y[r] = codes[r];
+  const y = new Float64Array(n);
+  for (let r = 0; r < n; r++) y[r] = codes[r];
   const fit = softmaxRegression(x, y, k, { ridge: PROPENSITY_RIDGE, ...NEWTON });
   for (let c = 0; c < k; c++) {
-    params[c * (1 + p)] = fit.intercepts[c];
-    for (let j = 0; j < p; j++) params[c * (1 + p) + 1 + j] = fit.coef.data[c * p + j];
+    params[c * q] = fit.intercepts[c];
+    for (let j = 0; j < p; j++) params[c * q + 1 + j] = fit.coef.data[c * p + j];
   }
-  return { k, p, params, oneVsRest: null };
+  return { k, p, params, oneVsRest: null, n, hessians };
+}
+
+/** X̃ᵀX̃ for X̃ = [1, x], (p + 1)² row-major. */
+function crossProduct(x: Matrix): Float64Array {
+  const p = x.cols;
+  const q = p + 1;
+  const xd = x.data;
+  const g = new Float64Array(q * q);
+  for (let r = 0; r < x.rows; r++) {
+    const row = r * p;
+    g[0] += 1;
+    for (let i = 0; i < p; i++) {
+      const xi = xd[row + i];
+      g[i + 1] += xi;
+      const hi = (i + 1) * q + 1;
+      for (let j = i; j < p; j++) g[hi + j] += xi * xd[row + j];
+    }
+  }
+  for (let i = 0; i < q; i++) for (let j = 0; j < i; j++) g[i * q + j] = g[j * q + i];
+  return g;
+}
+
+/** Row c of a warm model as a starting point (coefficients, Hessian rescaled to n rows), when the model has it. */
+function warmRow(warm: PropensityModel | null, c: number, p: number, n: number): { start: Float64Array; hessian: Float64Array } | null {
+  if (warm === null || warm.p !== p || c >= warm.k || warm.n === 0) return null;
+  const h = warm.hessians[c];
+  if (!h) return null;
+  const q = p + 1;
+  const start = warm.params.slice(c * q, (c + 1) * q);
+  if (!start.every(Number.isFinite)) return null;
+  // The likelihood part of the Hessian scales with the row count; the ridge does not.
+  const hessian = new Float64Array(q * q);
+  const f = n / warm.n;
+  for (let i = 0; i < q * q; i++) hessian[i] = h[i] * f;
+  for (let j = 1; j < q; j++) hessian[j * q + j] += PROPENSITY_RIDGE * (1 - f);
+  return { start, hessian };
 }
 
 /** Arm probabilities for each row of x into out (n × k, row-major). */

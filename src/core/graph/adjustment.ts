@@ -27,6 +27,8 @@ export type AdjustmentKind =
   | 'optimal'
   /** The parents of the treatment. */
   | 'parents'
+  /** The set chosen for a more probable graph of a set, also valid in this one (effects/effect-cache.ts). */
+  | 'shared'
   /** No directed path X → Y: the effect is zero in this graph; the set (pa(X) minus Y) is only used for diagnostics. */
   | 'no-causal-path';
 

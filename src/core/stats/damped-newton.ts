@@ -1,7 +1,8 @@
 /**
- * The step both Newton fits (logistic and softmax regression) take once the direction is
- * known: halve the step until the penalised log-likelihood does not fall (backtracking),
- * move the parameters, and report whether the fit has converged.
+ * The step the softmax-regression Newton fit takes once the direction is known: halve the
+ * step until the penalised log-likelihood does not fall (backtracking), move the parameters,
+ * and report whether the fit has converged. (Logistic regression fuses its line search with
+ * its passes over the rows, see logistic-regression.ts.)
  */
 export function dampedNewtonStep(
   theta: Float64Array,

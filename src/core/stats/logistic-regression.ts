@@ -1,6 +1,5 @@
 import type { Matrix } from '../linalg/matrix.js';
 import { cholesky, choleskySolve } from '../linalg/cholesky.js';
-import { dampedNewtonStep } from './damped-newton.js';
 
 /** Options of `logisticRegression`. */
 export interface LogisticOptions {
@@ -10,6 +9,17 @@ export interface LogisticOptions {
   readonly maxIter?: number;
   /** Convergence tolerance on the largest Newton step. Default 1e-10. */
   readonly tol?: number;
+  /**
+   * Starting point (a warm start, e.g. the fit on another cross-fitting fold); default the
+   * intercept-only fit. Length p + 1: intercept first.
+   */
+  readonly start?: Float64Array;
+  /**
+   * The penalised negative Hessian at `start` (or an approximation of it: the one of a nearby
+   * fit), (p + 1)² row-major, ridge included. When given, the first pass over the rows skips the
+   * Hessian and this matrix is factored instead. Ignored without `start`.
+   */
+  readonly startHessian?: Float64Array;
 }
 
 /** Fitted logistic model; `logLik` is the unpenalised log-likelihood at the fitted coefficients. */
@@ -19,6 +29,8 @@ export interface LogisticResult {
   readonly logLik: number;
   readonly converged: boolean;
   readonly iterations: number;
+  /** The penalised negative Hessian last factored, (p + 1)² row-major: a `startHessian` for a warm start. */
+  readonly hessian: Float64Array;
 }
 
 /** log(1 + e^z) without overflow. */
@@ -27,12 +39,27 @@ export function softplus(z: number): number {
 }
 
 /**
+ * Steps larger than this (largest coefficient change) are followed by a fresh Hessian; after
+ * smaller ones the previous Cholesky factor is reused (a chord step), since the Hessian then
+ * changes by O(step) and the reused factor still contracts the error quickly. Chosen on the
+ * cross-check's propensity fits, where it halves the cost of a fit; any value gives the same
+ * optimum, only the path differs.
+ */
+const CHORD_BELOW = 0.05;
+
+/**
  * Binary logistic regression P(y = 1 | x) = σ(b + xᵀβ) by Newton's method (iteratively
  * reweighted least squares; Nelder & Wedderburn 1972) on the ridge-penalised
  * log-likelihood ℓ(b, β) − (λ/2)‖β‖², with step halving when the penalised objective would
  * decrease. With λ > 0 the objective is strictly concave, so the estimate stays finite even
  * when the classes are perfectly separated. y holds 0/1 values (fractions in [0, 1] act as
  * proportions); anything else, including NaN, is a RangeError.
+ *
+ * Cost: one pass over the rows per iteration computes the objective, the gradient and (when
+ * needed) the Hessian together; near the optimum the last Hessian's factor is reused (see
+ * CHORD_BELOW), so those passes cost O(n·p) instead of O(n·p²). The final step (below `tol`)
+ * is applied without another pass: `logLik` is the value before it, which differs by about
+ * ‖step‖²·‖H‖, far below anything a likelihood-ratio test can see.
  */
 export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOptions = {}): LogisticResult {
   const n = x.rows;
@@ -50,62 +77,73 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
   const hm: Matrix = { rows: q, cols: q, data: hess };
   const step = new Float64Array(q);
 
-  // Start the intercept at the log-odds of the mean response.
   let ybar = 0;
   for (let r = 0; r < n; r++) {
     const v = y[r];
     if (!(v >= 0 && v <= 1)) throw new RangeError(`logisticRegression: y[${r}] = ${v} is not in [0, 1]`);
     ybar += v;
   }
-  ybar = n > 0 ? Math.min(1 - 1e-6, Math.max(1e-6, ybar / n)) : 0.5;
-  theta[0] = Math.log(ybar / (1 - ybar));
+  if (opts.start) {
+    if (opts.start.length !== q) throw new RangeError(`logisticRegression: start has length ${opts.start.length}, expected ${q}`);
+    theta.set(opts.start);
+  } else {
+    // The intercept-only fit: the log-odds of the mean response.
+    ybar = n > 0 ? Math.min(1 - 1e-6, Math.max(1e-6, ybar / n)) : 0.5;
+    theta[0] = Math.log(ybar / (1 - ybar));
+  }
 
-  const objective = (t: Float64Array): number => {
-    let ll = 0;
-    for (let r = 0; r < n; r++) {
-      const row = r * p;
-      let z = t[0];
-      for (let j = 0; j < p; j++) z += xd[row + j] * t[j + 1];
-      ll += y[r] * z - softplus(z);
-    }
-    let pen = 0;
-    for (let j = 1; j < q; j++) pen += t[j] * t[j];
-    return ll - 0.5 * ridge * pen;
+  const buffers = passBuffers(xd, n, p);
+  const pass = (t: Float64Array, withHessian: boolean): number => logisticPass(buffers, y, n, p, ridge, t, grad, withHessian ? hess : null);
+
+  let factor: Matrix | null = null;
+  const refactor = (): void => {
+    for (let i = 0; i < q; i++) for (let j = 0; j < i; j++) hess[i * q + j] = hess[j * q + i];
+    for (let j = 1; j < q; j++) hess[j * q + j] += ridge;
+    factor = factorWithJitter(hm);
   };
 
-  let obj = objective(theta);
+  let obj: number;
+  if (opts.start && opts.startHessian) {
+    if (opts.startHessian.length !== q * q) throw new RangeError(`logisticRegression: startHessian has length ${opts.startHessian.length}, expected ${q * q}`);
+    obj = pass(theta, false);
+    hess.set(opts.startHessian);
+    factor = factorWithJitter(hm);
+  } else {
+    obj = pass(theta, true);
+    refactor();
+  }
   let converged = false;
+  let stalled = false;
   let iter = 0;
   for (; iter < maxIter && !converged; iter++) {
-    grad.fill(0);
-    hess.fill(0);
-    for (let r = 0; r < n; r++) {
-      const row = r * p;
-      let z = theta[0];
-      for (let j = 0; j < p; j++) z += xd[row + j] * theta[j + 1];
-      const mu = 1 / (1 + Math.exp(-z));
-      const res = y[r] - mu;
-      const w = mu * (1 - mu);
-      grad[0] += res;
-      hess[0] += w;
-      for (let i = 0; i < p; i++) {
-        const xi = xd[row + i];
-        grad[i + 1] += res * xi;
-        const wxi = w * xi;
-        hess[i + 1] += wxi;
-        const hi = (i + 1) * q + 1;
-        for (let j = i; j < p; j++) hess[hi + j] += wxi * xd[row + j];
-      }
+    choleskySolve(factor!, grad, step);
+    let maxStep = 0;
+    for (let j = 0; j < q; j++) maxStep = Math.max(maxStep, Math.abs(step[j]));
+    if (!(maxStep >= tol)) {
+      for (let j = 0; j < q; j++) theta[j] += step[j];
+      converged = true;
+      break;
     }
-    for (let i = 0; i < q; i++) for (let j = 0; j < i; j++) hess[i * q + j] = hess[j * q + i];
-    for (let j = 1; j < q; j++) {
-      grad[j] -= ridge * theta[j];
-      hess[j * q + j] += ridge;
+    // Backtracking: halve the step until the penalised objective does not fall. The pass at
+    // the accepted point leaves its gradient (and Hessian, after a large step) in place.
+    const fresh = maxStep > CHORD_BELOW || stalled;
+    let t = 1;
+    let next = obj;
+    let half = 0;
+    for (; half < 30; half++) {
+      for (let j = 0; j < q; j++) trial[j] = theta[j] + t * step[j];
+      next = pass(trial, fresh || half > 0);
+      if (next >= obj - 1e-12 * Math.abs(obj)) break;
+      t *= 0.5;
     }
-    solveWithJitter(hm, grad, step);
-    const moved = dampedNewtonStep(theta, step, trial, obj, objective, tol);
-    obj = moved.obj;
-    if (moved.converged) converged = true;
+    theta.set(trial);
+    const gain = next - obj;
+    obj = next;
+    if (fresh || half > 0) refactor();
+    // No measurable gain: stop after a true Newton step; after a chord step take one true step
+    // first (a chord step's error is not yet quadratically small).
+    stalled = gain >= 0 && gain < 1e-14 * (1 + Math.abs(obj)) && t * maxStep < 1e-6;
+    if (stalled && (fresh || half > 0)) converged = true;
   }
 
   let pen = 0;
@@ -116,7 +154,108 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
     logLik: obj + 0.5 * ridge * pen,
     converged,
     iterations: iter,
+    hessian: hess,
   };
+}
+
+/** Buffers of one fit's passes: the design by columns and per-row work arrays. */
+interface PassBuffers {
+  /** x by columns: column j at [j·n, (j + 1)·n). */
+  readonly cols: Float64Array;
+  readonly z: Float64Array;
+  readonly res: Float64Array;
+  readonly w: Float64Array;
+  readonly wx: Float64Array;
+}
+
+function passBuffers(xd: Float64Array, n: number, p: number): PassBuffers {
+  const cols = new Float64Array(n * p);
+  for (let r = 0; r < n; r++) for (let j = 0; j < p; j++) cols[j * n + r] = xd[r * p + j];
+  return { cols, z: new Float64Array(n), res: new Float64Array(n), w: new Float64Array(n), wx: new Float64Array(n) };
+}
+
+/**
+ * Penalised objective at t; fills grad (and, when `hess` is given, the upper triangle of the
+ * unpenalised Hessian) at t. Works column by column on a column-major copy of the design, so
+ * every inner loop is a contiguous multiply-add that V8 compiles tightly (about twice as fast
+ * as a row-by-row loop with the Hessian's short triangular inner loops).
+ */
+function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, ridge: number, t: Float64Array, grad: Float64Array, hess: Float64Array | null): number {
+  const q = p + 1;
+  const { cols, z, res, w, wx } = b;
+  z.fill(t[0]);
+  for (let j = 0; j < p; j++) {
+    const tj = t[j + 1];
+    if (tj === 0) continue;
+    const o = j * n;
+    for (let r = 0; r < n; r++) z[r] += tj * cols[o + r];
+  }
+  let ll = 0;
+  let g0 = 0;
+  let h0 = 0;
+  for (let r = 0; r < n; r++) {
+    const zr = z[r];
+    // One exp serves both the log-likelihood and the mean: e = exp(−|z|) ∈ (0, 1]. log(1 + e)
+    // rather than log1p(e): its absolute error stays below 2.3e-16 on this range, which is
+    // all a sum of log-likelihood terms needs, and it is about three times faster in V8.
+    const e = Math.exp(-Math.abs(zr));
+    const yr = y[r];
+    const sp = Math.log(1 + e);
+    ll += yr * zr - (zr > 0 ? zr + sp : sp);
+    const mu = zr >= 0 ? 1 / (1 + e) : e / (1 + e);
+    const rr = yr - mu;
+    res[r] = rr;
+    g0 += rr;
+    const wr = mu * (1 - mu);
+    w[r] = wr;
+    h0 += wr;
+  }
+  grad[0] = g0;
+  for (let j = 0; j < p; j++) {
+    const o = j * n;
+    let g = 0;
+    for (let r = 0; r < n; r++) g += res[r] * cols[o + r];
+    grad[j + 1] = g - ridge * t[j + 1];
+  }
+  if (hess !== null) {
+    hess[0] = h0;
+    for (let i = 0; i < p; i++) {
+      const oi = i * n;
+      let s0 = 0;
+      for (let r = 0; r < n; r++) {
+        const v = w[r] * cols[oi + r];
+        wx[r] = v;
+        s0 += v;
+      }
+      hess[i + 1] = s0;
+      const hi = (i + 1) * q + 1;
+      for (let j = i; j < p; j++) {
+        const oj = j * n;
+        let s = 0;
+        for (let r = 0; r < n; r++) s += wx[r] * cols[oj + r];
+        hess[hi + j] = s;
+      }
+    }
+  }
+  let pen = 0;
+  for (let j = 1; j < q; j++) pen += t[j] * t[j];
+  return ll - 0.5 * ridge * pen;
+}
+
+/** Cholesky factor of H, with a small diagonal jitter when H is singular. */
+function factorWithJitter(h: Matrix): Matrix {
+  try {
+    return cholesky(h);
+  } catch (e) {
+    if (!(e instanceof RangeError)) throw e;
+  }
+  const q = h.rows;
+  let trace = 0;
+  for (let i = 0; i < q; i++) trace += h.data[i * q + i];
+  const jitter = 1e-8 * (trace / q) + 1e-12;
+  const d = h.data.slice();
+  for (let i = 0; i < q; i++) d[i * q + i] += jitter;
+  return cholesky({ rows: q, cols: q, data: d });
 }
 
 /**
@@ -124,17 +263,5 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
  * when H is singular (separated data without a ridge). Writes into `out`.
  */
 export function solveWithJitter(h: Matrix, g: Float64Array, out: Float64Array): void {
-  const q = h.rows;
-  try {
-    choleskySolve(cholesky(h), g, out);
-    return;
-  } catch (e) {
-    if (!(e instanceof RangeError)) throw e;
-  }
-  let trace = 0;
-  for (let i = 0; i < q; i++) trace += h.data[i * q + i];
-  const jitter = 1e-8 * (trace / q) + 1e-12;
-  const d = h.data.slice();
-  for (let i = 0; i < q; i++) d[i * q + i] += jitter;
-  choleskySolve(cholesky({ rows: q, cols: q, data: d }), g, out);
+  choleskySolve(factorWithJitter(h), g, out);
 }

@@ -33,6 +33,45 @@ describe('logisticRegression', () => {
     expect(fit.logLik).toBeCloseTo(ll, 9);
   });
 
+  it('from a warm start with a supplied Hessian reaches the same optimum (the score equations hold)', () => {
+    const rng = Rng.create(21);
+    const n = 800;
+    const x = zeros(n, 4);
+    const y = new Float64Array(n);
+    for (let r = 0; r < n; r++) {
+      const v = [rng.normal(), rng.normal(), rng.normal(), rng.int(2)];
+      x.data.set(v, r * 4);
+      y[r] = rng.uniform() < 1 / (1 + Math.exp(-(-0.7 + 0.8 * v[0] - 0.5 * v[1] + 1.1 * v[3]))) ? 1 : 0;
+    }
+    const ridge = 1e-3;
+    const cold = logisticRegression(x, y, { ridge });
+    // A deliberately poor start: coefficients off by 0.3–0.5 and the intercept-only Hessian
+    // scaled down — the chord steps must still converge to the penalised optimum.
+    const start = Float64Array.from([0.2, 0.4, -0.1, 0.3, 0.5]);
+    const startHessian = new Float64Array(25);
+    for (let r = 0; r < n; r++) {
+      const row = [1, ...x.data.subarray(r * 4, r * 4 + 4)];
+      for (let i = 0; i < 5; i++) for (let j = 0; j < 5; j++) startHessian[i * 5 + j] += 0.1 * row[i] * row[j];
+    }
+    const warm = logisticRegression(x, y, { ridge, start, startHessian });
+    expect(warm.converged).toBe(true);
+    expect(warm.intercept).toBeCloseTo(cold.intercept, 8);
+    for (let j = 0; j < 4; j++) expect(warm.coef[j]).toBeCloseTo(cold.coef[j], 8);
+    // Penalised score equations: Σ (y − p) = 0 and Σ x_j (y − p) = λ β_j.
+    const score = new Float64Array(5);
+    for (let r = 0; r < n; r++) {
+      let z = warm.intercept;
+      for (let j = 0; j < 4; j++) z += x.data[r * 4 + j] * warm.coef[j];
+      const res = y[r] - 1 / (1 + Math.exp(-z));
+      score[0] += res;
+      for (let j = 0; j < 4; j++) score[j + 1] += res * x.data[r * 4 + j];
+    }
+    expect(Math.abs(score[0])).toBeLessThan(1e-7);
+    for (let j = 0; j < 4; j++) expect(Math.abs(score[j + 1] - ridge * warm.coef[j])).toBeLessThan(1e-7);
+    expect(warm.logLik).toBeCloseTo(cold.logLik, 8);
+    expect(() => logisticRegression(x, y, { start: new Float64Array(3) })).toThrow(RangeError);
+  });
+
   it('satisfies the score equations Xᵀ(y − p) = 0 on continuous data', () => {
     const rng = Rng.create(11);
     const n = 500;
