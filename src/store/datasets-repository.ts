@@ -1,5 +1,4 @@
-import type { BatchStats } from '../app/datasets/column-stats.js';
-import type { BatchInfo, ColumnKind, ColumnSchema, DatasetSummary } from '../app/datasets/types.js';
+import type { BatchInfo, BatchStats, ColumnKind, ColumnSchema, DatasetSummary } from './dataset-types.js';
 import { ident, type Db } from './db.js';
 import { UUID, iso } from './column-values.js';
 

@@ -1,15 +1,5 @@
+import type { BatchColumnStats, BatchStats } from '../../store/dataset-types.js';
 import type { ColumnSchema, ColumnStats } from './types.js';
-
-/**
- * Sufficient statistics of one column in one batch, as stored in dataset_batches.stats
- * (keyed by the column's generated SQL name).
- */
-export type BatchColumnStats =
-  | { kind: 'continuous'; count: number; missing: number; mean: number; m2: number; min: number | null; max: number | null }
-  | { kind: 'binary' | 'categorical'; count: number; missing: number; counts: Record<string, number> };
-
-/** Stored stats of one batch: generated column name → stats. */
-export type BatchStats = Record<string, BatchColumnStats>;
 
 /**
  * Merge two continuous summaries with the pairwise update of Chan, Golub & LeVeque (1979,

@@ -1,6 +1,6 @@
 import { dataError } from '../../errors/data-errors.js';
 import { NUL_REASON, csvQuote, isMissing, NOT_A_NUMBER, readNumber, sortLevels, trimCell } from './cell-values.js';
-import type { BatchStats } from './column-stats.js';
+import type { BatchStats } from '../../store/dataset-types.js';
 import type { ColumnSchema, IngestLimits } from './types.js';
 
 const CONTINUOUS = 0;

@@ -1,6 +1,8 @@
-import type { ColumnKind } from '../../core/frame/frame.js';
+import type { BatchInfo, ColumnKind, ColumnSchema, DatasetSummary } from '../../store/dataset-types.js';
 
-export type { ColumnKind };
+// The stored shapes are defined in store/ (the repository returns them); re-exported here so
+// use cases and routes keep one import for dataset types.
+export type { BatchInfo, ColumnKind, ColumnSchema, DatasetSummary };
 
 /** A column the caller declares instead of letting Fulcrum infer it. */
 export interface ColumnDeclaration {
@@ -37,21 +39,6 @@ export const DEFAULT_INGEST_LIMITS: IngestLimits = {
   inferenceRows: 5_000,
 };
 
-/** The stored description of one column. */
-export interface ColumnSchema {
-  /** The user's name. */
-  name: string;
-  kind: ColumnKind;
-  /** Binary: [label coded 0, label coded 1]; categorical: labels in code order; continuous: none. */
-  levels?: string[];
-  /** True when the levels were declared (no other label is accepted). */
-  levelsDeclared: boolean;
-  /** How the kind was decided, e.g. "inferred continuous; 5 distinct integer values …". */
-  inference: string;
-  /** The generated SQL column holding the values (`c1`, `c2`, …). */
-  sqlColumn: string;
-}
-
 /** Public statistics of a continuous column. */
 export interface ContinuousStats {
   kind: 'continuous';
@@ -75,28 +62,6 @@ export interface LevelStats {
 }
 
 export type ColumnStats = ContinuousStats | LevelStats;
-
-/** One upload or append. */
-export interface BatchInfo {
-  /** 1, 2, … in the order they were stored. */
-  batch: number;
-  rowCount: number;
-  /** row_no of the batch's first row (rows are numbered from 0 across the dataset). */
-  firstRow: number;
-  source: 'csv' | 'json';
-  createdAt: string;
-}
-
-/** A dataset as listed. */
-export interface DatasetSummary {
-  id: string;
-  name: string;
-  rowCount: number;
-  columnCount: number;
-  batchCount: number;
-  createdAt: string;
-  updatedAt: string;
-}
 
 /** A dataset with its schema, batches and per-column statistics over all batches. */
 export interface DatasetDetail extends DatasetSummary {
