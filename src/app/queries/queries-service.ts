@@ -16,10 +16,9 @@ import { upliftTable, type UpliftQuery, type UpliftTable } from '../../core/effe
 import { whatIf, type WhatIfQuery, type WhatIfResult } from '../../core/effects/what-if.js';
 import { Rng } from '../../core/random/rng.js';
 import { KIND_CONTINUOUS, type CompiledModel } from '../../core/scm/compiled-model.js';
-import { InterventionError } from '../../core/scm/intervention.js';
+import { QueryRefusalError } from '../../core/scm/query-refusal.js';
 import { deserialise } from '../../core/scm/serialise.js';
 import { modelError } from '../../errors/model-errors.js';
-import type { FulcrumError } from '../../errors/fulcrum-error.js';
 import type { ModelsService } from '../models/models-service.js';
 import type { VersionMeta } from '../../store/models-repository.js';
 
@@ -154,15 +153,16 @@ function checkSegments(model: CompiledModel, treatment: string, segments: readon
   }
 }
 
-/** Engine errors about the question become catalogued 4xx errors. */
+/**
+ * The engine's refusals of the question become catalogued 4xx errors. Anything else the engine
+ * throws (a RangeError included) is a bug: it passes through and the api answers 500.
+ */
 function translate<T>(fn: () => T): T {
   try {
     return fn();
   } catch (e) {
     if (e instanceof SegmentError) throw modelError('ERR_QUERY_SEGMENT_DESCENDANT', { reason: e.message, variable: e.variable, graphs: e.graphs, weight: e.weight });
-    if (e instanceof InterventionError || (e instanceof RangeError && !(e as Partial<FulcrumError>).status)) {
-      throw modelError('ERR_QUERY_INVALID', { reason: e.message });
-    }
+    if (e instanceof QueryRefusalError) throw modelError('ERR_QUERY_INVALID', { reason: e.message });
     throw e;
   }
 }

@@ -7,6 +7,7 @@
  * factorisation); CATE for a pre-treatment segment is the mean over its rows.
  */
 import type { InterventionValue } from '../scm/intervention.js';
+import { QueryRefusalError } from '../scm/query-refusal.js';
 import type { Arm } from './arms.js';
 import { armLabel } from './arms.js';
 import { queryCautions } from './cautions.js';
@@ -62,10 +63,10 @@ export const INTERVAL_METHOD =
 export function estimateEffect(cache: EffectCache, q: EffectQuery): EffectEstimate {
   const model = cache.model;
   const level = q.level ?? 0.9;
-  if (!(level > 0 && level < 1)) throw new RangeError(`level must be in (0, 1), got ${level}`);
+  if (!(level > 0 && level < 1)) throw new QueryRefusalError(`level must be in (0, 1), got ${level}`);
   const u = cache.outcomes(q.treatment, q.outcome, [q.arm, q.reference], q.outcomeLevel);
   const seg = q.segment ? resolveSegment(model, u.treatment, q.segment) : null;
-  if (seg && seg.count === 0) throw new RangeError(`segment "${seg.name}" contains no reference rows`);
+  if (seg && seg.count === 0) throw new QueryRefusalError(`segment "${seg.name}" contains no reference rows`);
   const checks = q.crossCheck === false ? null : cache.crossChecks(u);
   const c = contrast(u, model.referenceWeights, model.graphWeights, checks, 0, 1, seg ? seg.mask : null, level);
   return finish(q.treatment, q.outcome, armLabel(q.arm), armLabel(q.reference), u.pathProbability, seg, model.nReference, c, checks !== null);

@@ -10,6 +10,7 @@ import { KIND_CONTINUOUS } from '../scm/compiled-model.js';
 import type { PolicyCondition, ResolvedCondition } from '../scm/intervention.js';
 import { valueCode, variableIndexOf } from '../scm/intervention.js';
 import { descendantMask } from '../scm/model-access.js';
+import { QueryRefusalError } from '../scm/query-refusal.js';
 
 /** A segment: every condition must hold (an empty list selects every row). */
 export interface Segment {
@@ -18,7 +19,7 @@ export interface Segment {
 }
 
 /** A segment that reads a descendant of the treatment in at least one graph. */
-export class SegmentError extends RangeError {
+export class SegmentError extends QueryRefusalError {
   constructor(
     message: string,
     /** The offending variable. */
@@ -83,7 +84,7 @@ export function resolveConditions(model: CompiledModel, conditions: readonly Pol
   return conditions.map((c) => {
     const v = variableIndexOf(model, c.variable);
     if ('in' in c) {
-      if (model.kinds[v] === KIND_CONTINUOUS) throw new RangeError(`segment condition on continuous "${c.variable}" needs a range, not a level set`);
+      if (model.kinds[v] === KIND_CONTINUOUS) throw new QueryRefusalError(`segment condition on continuous "${c.variable}" needs a range, not a level set`);
       const codes = new Uint8Array(model.nLevels[v]);
       for (const lv of c.in) codes[valueCode(model, v, lv)] = 1;
       return { variable: v, codes, lo: NaN, hi: NaN };
@@ -163,7 +164,7 @@ export function expandSegments(model: CompiledModel, treatment: number, by: Segm
     const vars = by.cells.map((nm) => variableIndexOf(model, nm));
     checkPreTreatment(model, treatment, vars);
     for (const v of vars) {
-      if (model.kinds[v] === KIND_CONTINUOUS) throw new RangeError(`segment-by variable "${model.names[v]}" is continuous: use quantile bins`);
+      if (model.kinds[v] === KIND_CONTINUOUS) throw new QueryRefusalError(`segment-by variable "${model.names[v]}" is continuous: use quantile bins`);
     }
     let combos: number[][] = [[]];
     for (const v of vars) {
@@ -177,8 +178,8 @@ export function expandSegments(model: CompiledModel, treatment: number, by: Segm
   }
   const v = variableIndexOf(model, by.variable);
   checkPreTreatment(model, treatment, [v]);
-  if (model.kinds[v] !== KIND_CONTINUOUS) throw new RangeError(`quantile bins need a numeric variable; "${by.variable}" is discrete: use cells`);
-  if (!(Number.isInteger(by.bins) && by.bins >= 2)) throw new RangeError(`bins must be an integer ≥ 2, got ${by.bins}`);
+  if (model.kinds[v] !== KIND_CONTINUOUS) throw new QueryRefusalError(`quantile bins need a numeric variable; "${by.variable}" is discrete: use cells`);
+  if (!(Number.isInteger(by.bins) && by.bins >= 2)) throw new QueryRefusalError(`bins must be an integer ≥ 2, got ${by.bins}`);
   const R = model.nReference;
   const idx = Array.from({ length: R }, (_, r) => r);
   const vals = model.referenceValues.subarray(v * R, (v + 1) * R);

@@ -15,6 +15,7 @@
  * estimate (per-graph normal approximation, mixture over graphs).
  */
 import type { InterventionValue } from '../scm/intervention.js';
+import { QueryRefusalError } from '../scm/query-refusal.js';
 import type { Arm } from './arms.js';
 import { armLabel } from './arms.js';
 import { queryCautions } from './cautions.js';
@@ -83,12 +84,12 @@ export interface UpliftTable {
 export function upliftTable(cache: EffectCache, q: UpliftQuery): UpliftTable {
   const model = cache.model;
   const level = q.level ?? 0.9;
-  if (q.arms.length === 0) throw new RangeError('an uplift table needs at least one candidate arm');
+  if (q.arms.length === 0) throw new QueryRefusalError('an uplift table needs at least one candidate arm');
   const costs = q.costs ?? q.arms.map(() => 0);
-  if (costs.length !== q.arms.length) throw new RangeError(`costs has ${costs.length} entries for ${q.arms.length} arms`);
+  if (costs.length !== q.arms.length) throw new QueryRefusalError(`costs has ${costs.length} entries for ${q.arms.length} arms`);
   const refCost = q.referenceCost ?? 0;
   const sign = q.better === 'higher' ? 1 : q.better === 'lower' ? -1 : NaN;
-  if (Number.isNaN(sign)) throw new RangeError(`better must be 'higher' or 'lower'`);
+  if (Number.isNaN(sign)) throw new QueryRefusalError(`better must be 'higher' or 'lower'`);
   const A = q.arms.length;
   // Reference is arm index A in the simulation.
   const u = cache.outcomes(q.treatment, q.outcome, [...q.arms, q.reference], q.outcomeLevel);

@@ -45,6 +45,7 @@ import { KIND_CATEGORICAL, KIND_CONTINUOUS } from '../scm/compiled-model.js';
 import type { InterventionValue } from '../scm/intervention.js';
 import { conditionHolds, InterventionError, valueCode, variableIndexOf } from '../scm/intervention.js';
 import { applyNoise, mechanismOutput } from '../scm/kernel.js';
+import { QueryRefusalError } from '../scm/query-refusal.js';
 import { descendantMask, pathProbability } from '../scm/model-access.js';
 import type { Arm, ResolvedArm } from './arms.js';
 import { ARM_OBSERVE, ARM_POLICY, ARM_SCALE, ARM_SET, ARM_SHIFT, armKey, resolveArm } from './arms.js';
@@ -164,13 +165,13 @@ export function whatIf(
   rng: Rng,
 ): WhatIfResult {
   const level = q.level ?? 0.9;
-  if (!(level > 0 && level < 1)) throw new RangeError(`level must be in (0, 1), got ${level}`);
+  if (!(level > 0 && level < 1)) throw new QueryRefusalError(`level must be in (0, 1), got ${level}`);
   const D = q.draws ?? DEFAULT_WHATIF_DRAWS;
-  if (!(Number.isInteger(D) && D >= 1 && D <= 10000)) throw new RangeError(`draws must be an integer in 1..10000, got ${D}`);
+  if (!(Number.isInteger(D) && D >= 1 && D <= 10000)) throw new QueryRefusalError(`draws must be an integer in 1..10000, got ${D}`);
   const t = variableIndexOf(model, q.treatment);
   const y = variableIndexOf(model, q.outcome);
   if (t === y) throw new InterventionError(`treatment and outcome are the same variable "${q.treatment}"`);
-  if (q.arms.length === 0) throw new RangeError('a what-if needs at least one arm');
+  if (q.arms.length === 0) throw new QueryRefusalError('a what-if needs at least one arm');
   const armList = q.arms.slice();
   let ref = 0;
   if (q.reference !== undefined) {
@@ -246,7 +247,7 @@ export function whatIf(
 
   // ---- simulate: per graph and chunk of rows, abduct once, then every arm on the same units ----
   if (pool > MAX_WHATIF_UNITS) {
-    throw new RangeError(`rows × draws needs ${pool} simulated units, more than ${MAX_WHATIF_UNITS}: post fewer rows or ask for fewer draws`);
+    throw new QueryRefusalError(`rows × draws needs ${pool} simulated units, more than ${MAX_WHATIF_UNITS}: post fewer rows or ask for fewer draws`);
   }
   const cap = Math.min(maxUnits, Math.max(maxRowDraws, Math.floor(CHUNK_VALUES / p)));
   const sim: SimState = {

@@ -41,6 +41,7 @@ import {
 } from './compiled-model.js';
 import { abductNoise } from './abduction.js';
 import { InterventionError, valueCode } from './intervention.js';
+import { QueryRefusalError } from './query-refusal.js';
 import { applyNoise, kernelWidths, mechanismOutput } from './kernel.js';
 import { ancestorMask, descendantMask } from './model-access.js';
 
@@ -103,12 +104,12 @@ export function rowsWorkspace(model: CompiledModel, cap: number): RowsWorkspace 
  * Check and encode posted rows: every key must be a model variable, continuous values finite
  * numbers, discrete values a level name or code; null (or an absent key) means not given.
  * Throws InterventionError naming the row and the variable (with the known names or levels),
- * RangeError for an empty or oversized request.
+ * QueryRefusalError for an empty or oversized request.
  */
 export function encodeRows(model: CompiledModel, rows: ReadonlyArray<Readonly<Record<string, PostedValue>>>): PostedRows {
   const n = rows.length;
-  if (n === 0) throw new RangeError('post at least one row');
-  if (n > MAX_POSTED_ROWS) throw new RangeError(`at most ${MAX_POSTED_ROWS} rows per request, got ${n}`);
+  if (n === 0) throw new QueryRefusalError('post at least one row');
+  if (n > MAX_POSTED_ROWS) throw new QueryRefusalError(`at most ${MAX_POSTED_ROWS} rows per request, got ${n}`);
   const p = model.p;
   const values = new Float64Array(p * n).fill(NaN);
   const index = new Map<string, number>();

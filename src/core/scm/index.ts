@@ -1,6 +1,7 @@
 /** The structural causal model layer: compile, serialise, simulate. */
 export * from './compiled-model.js';
 export * from './intervention.js';
+export { QueryRefusalError } from './query-refusal.js';
 export { fitModel, fitFixedGraph, type FitModelOptions, type GraphSetInput } from './fit-model.js';
 export { serialise, deserialise, ModelFormatError } from './serialise.js';
 export {

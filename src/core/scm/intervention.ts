@@ -13,6 +13,7 @@
  */
 import type { CompiledModel } from './compiled-model.js';
 import { KIND_CONTINUOUS } from './compiled-model.js';
+import { QueryRefusalError } from './query-refusal.js';
 
 /** A value for a variable: a number (continuous value, or a code 0..k-1) or a level name. */
 export type InterventionValue = number | string;
@@ -44,7 +45,7 @@ export type Intervention =
   | { readonly type: 'joint'; readonly parts: readonly Intervention[] };
 
 /** An intervention the model cannot carry out (unknown variable or level, shift of a discrete variable, policy reading a descendant). */
-export class InterventionError extends RangeError {
+export class InterventionError extends QueryRefusalError {
   constructor(message: string) {
     super(message);
     this.name = 'InterventionError';
