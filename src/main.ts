@@ -19,6 +19,7 @@ import { openDb } from './store/open-db.js';
 import { createWorkspacesRepository } from './store/workspaces-repository.js';
 import { createKey } from './app/keys/key-use-cases.js';
 import { startFitRuntime } from './app/models/fit-runtime.js';
+import { createModelsService } from './app/models/models-service.js';
 import { runDemo } from './demo/run-demo.js';
 import { createBullmqQueue } from './jobs/bullmq-queue.js';
 import { createInProcessQueue } from './jobs/in-process-queue.js';
@@ -95,13 +96,14 @@ async function serve(config: Config, options: { demoKey?: boolean } = {}): Promi
   }
 
   const queue = createQueue(config);
+  // One set of model use cases for the api and, in embedded mode, the fits of this process.
+  const models = createModelsService(db, queue);
   const logger = loggerOptions(config, Boolean(process.stdout.isTTY));
-  const app = await buildApp({ config, db, queue, logger });
+  const app = await buildApp({ config, db, queue, models, logger });
   if (queue.kind === 'in-process') {
     // Embedded default: this process is also the worker; fits left unfinished by a previous run resume.
     await startFitRuntime({
-      db,
-      queue,
+      models,
       concurrency: config.FULCRUM_WORKER_CONCURRENCY,
       resumeUnfinished: true,
       log: (entry, msg) => app.log.info(entry, msg),
@@ -155,7 +157,7 @@ async function worker(config: Config): Promise<void> {
   const { db } = await openMigrated(config);
   const queue = createQueue(config);
   const log = (entry: Record<string, unknown>, msg: string) => console.log(JSON.stringify({ time: new Date().toISOString(), msg, ...entry }));
-  await startFitRuntime({ db, queue, concurrency: config.FULCRUM_WORKER_CONCURRENCY, log });
+  await startFitRuntime({ models: createModelsService(db, queue), concurrency: config.FULCRUM_WORKER_CONCURRENCY, log });
   log({ queue: config.FULCRUM_QUEUE_NAME, concurrency: config.FULCRUM_WORKER_CONCURRENCY, backend: db.kind }, 'fit worker started');
   let stopping = false;
   const shutdown = async (signal: string) => {

@@ -48,10 +48,16 @@ export interface BuildAppOptions {
   /** Service version shown in the OpenAPI document. */
   version?: string;
   /**
-   * The job queue fits are enqueued on (owned by the caller). Default: an in-process queue
-   * with no workers, closed with the app — fits then wait until a worker is started on it.
+   * The job queue fits are enqueued on (owned by the caller). Default: the queue of `models`
+   * when given, else an in-process queue with no workers, closed with the app — fits then wait
+   * until a worker is started on it.
    */
   queue?: QueuePort;
+  /**
+   * The model use cases, built by the caller over `db` and the queue so that the fit runtime
+   * of the same process shares them. Default: built here.
+   */
+  models?: ModelsService;
 }
 
 declare module 'fastify' {
@@ -74,6 +80,11 @@ declare module 'fastify' {
 /** Build the HTTP app (not listening; call `listen`, or use `inject`/supertest in tests). */
 export async function buildApp(options: BuildAppOptions): Promise<FastifyInstance> {
   const { config, db } = options;
+  if (options.models && (options.models.deps.db !== db || (options.queue && options.models.deps.queue !== options.queue))) {
+    throw new TypeError('buildApp: models must be built over the same database and queue as the app');
+  }
+  const queue = options.queue ?? options.models?.deps.queue ?? createInProcessQueue();
+  const ownsQueue = options.queue === undefined && options.models === undefined;
   const app = Fastify({
     logger: options.logger ?? loggerOptions(config),
     bodyLimit: config.FULCRUM_BODY_LIMIT_BYTES,
@@ -132,8 +143,7 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   const keys = createKeysRepository(db);
   const workspaces = createWorkspacesRepository(db);
   const datasets = createDatasetsService(db);
-  const queue = options.queue ?? createInProcessQueue();
-  const models = createModelsService(db, queue);
+  const models = options.models ?? createModelsService(db, queue);
   const queries = createQueriesService(models);
   // Without a configured secret, links are signed with a per-process one and end at a restart.
   const linkSecret = config.FULCRUM_LINK_SECRET ?? randomBytes(32).toString('base64url');
@@ -157,7 +167,7 @@ export async function buildApp(options: BuildAppOptions): Promise<FastifyInstanc
   app.addHook('onClose', async () => {
     shuttingDown = true;
     if (ownsRedis && redis) redis.disconnect();
-    if (!options.queue) await queue.close();
+    if (ownsQueue) await queue.close();
   });
 
   // 4. Routes.

@@ -34,7 +34,7 @@ describe.each(backends())('effect query errors on %s', (backend) => {
       },
     });
     t = await startTestApp(backend, { logger: { level: 'info', stream } });
-    await startFitRuntime({ db: t.db, queue: t.app.queue, inlineCompute: true });
+    await startFitRuntime({ models: t.app.models, inlineCompute: true });
     const ds = await t.app.inject({
       method: 'POST',
       url: '/v1/datasets?name=scenario',

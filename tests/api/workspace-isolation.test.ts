@@ -33,7 +33,7 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     datasetB = res.json().dataset.id;
     keyB = (await t.app.inject({ method: 'GET', url: '/v1/keys', headers: bearer(t.b.adminKey) })).json().keys[0].id;
     // B also has a fitted model (fixed graph: quick), a fit job and a refit schedule.
-    await startFitRuntime({ db: t.db, queue: t.app.queue, inlineCompute: true });
+    await startFitRuntime({ models: t.app.models, inlineCompute: true });
     const bigB = await t.app.inject({
       method: 'POST',
       url: '/v1/datasets?name=b-scenario',

@@ -3,17 +3,18 @@
  * tick handler (and the stored schedules re-registered), and the workers started. Used by
  * `serve` in embedded mode (in-process queue), by `worker` (BullMQ), and by tests.
  */
-import type { Db } from '../../store/db.js';
-import type { QueuePort } from '../../jobs/queue-port.js';
 import { createDatasetsService } from '../datasets/datasets-service.js';
 import { createFitFrames } from './fit-frames.js';
 import { registerFitHandlers } from './fit-handlers.js';
 import { FIT_ATTEMPTS, FIT_BACKOFF_MS, FIT_JOB, fitQueueIds } from './fit-job-data.js';
-import { createModelsService } from './models-service.js';
+import type { ModelsService } from './models-service.js';
 
 export interface FitRuntimeOptions {
-  db: Db;
-  queue: QueuePort;
+  /**
+   * The model use cases of this process (the api's own in `serve`): fits run on its queue and
+   * write through its repositories on its database.
+   */
+  models: ModelsService;
   /** Jobs this process runs at once (each heavy step takes one compute thread). Default 2. */
   concurrency?: number;
   /** Structured log of job steps. */
@@ -28,8 +29,8 @@ export interface FitRuntimeOptions {
 }
 
 export async function startFitRuntime(opts: FitRuntimeOptions): Promise<void> {
-  const { db, queue } = opts;
-  const models = createModelsService(db, queue);
+  const { models } = opts;
+  const { db, queue } = models.deps;
   registerFitHandlers({
     queue,
     models: models.deps.models,
