@@ -20,17 +20,16 @@
  * runs the same load with no refit, for comparison, and writes nothing.
  * Writes bench/results/api.json and the "## API" section of docs/benchmarks.md.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { createRequire } from 'node:module';
-import { createServer } from 'node:net';
 import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { Redis } from 'ioredis';
 import { generateScenario, scenarioCsv, SCENARIO_TIERS, SCENARIO_TRUE_EDGES } from '../src/demo/scenario.js';
 import { dropSchema, openDb } from '../src/store/open-db.js';
+import { freePort, sleep, startMain, type MainProcess } from '../tools/process-helpers.js';
+import { dropQueueKeys, urlWithSchema } from '../tools/service-scopes.js';
 import { updateSection } from './docs-section.js';
 
 /** The part of autocannon's interface used here (the package ships no types). */
@@ -64,45 +63,6 @@ const backend = services ? 'postgres+redis (api and BullMQ worker processes)' : 
 const suffix = randomBytes(5).toString('hex');
 const KEY = `fk_bench${suffix}_${randomBytes(24).toString('base64url')}`;
 const load = () => loadavg().map((x) => x.toFixed(2)).join(' ');
-const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
-
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = createServer();
-    srv.once('error', reject);
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as { port: number }).port;
-      srv.close(() => resolve(port));
-    });
-  });
-}
-
-/** Start `src/main.ts <command>` and wait until `ready` says so. */
-async function startProcess(command: string, env: Record<string, string>, ready: (out: string) => Promise<boolean>): Promise<ChildProcess> {
-  const child = spawn(process.execPath, ['--import', 'tsx', 'src/main.ts', command], {
-    env: { ...process.env, LOG_LEVEL: 'warn', NODE_ENV: 'production', ...env },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  let out = '';
-  child.stdout!.on('data', (b: Buffer) => (out += b.toString()));
-  child.stderr!.on('data', (b: Buffer) => (out += b.toString()));
-  const end = Date.now() + 120_000;
-  while (!(await ready(out))) {
-    if (child.exitCode !== null) throw new Error(`${command} exited:\n${out}`);
-    if (Date.now() > end) throw new Error(`${command} did not start:\n${out}`);
-    await sleep(100);
-  }
-  return child;
-}
-
-async function stopProcess(child: ChildProcess | undefined): Promise<void> {
-  if (!child || child.exitCode !== null || child.signalCode !== null) return;
-  const exited = new Promise((r) => child.once('exit', r));
-  child.kill('SIGTERM');
-  const t = setTimeout(() => child.kill('SIGKILL'), 15_000);
-  await exited;
-  clearTimeout(t);
-}
 
 async function main(): Promise<void> {
   const port = await freePort();
@@ -114,21 +74,22 @@ async function main(): Promise<void> {
   if (services) {
     const admin = await openDb({ databaseUrl: process.env.DATABASE_URL, schema, poolSize: 1 }); // creates the schema
     await admin.close();
-    const u = new URL(process.env.DATABASE_URL!);
-    u.searchParams.set('options', `-c search_path=${schema}`);
-    Object.assign(env, { DATABASE_URL: u.toString(), REDIS_URL: process.env.REDIS_URL!, FULCRUM_QUEUE_NAME: queueName });
+    Object.assign(env, { DATABASE_URL: urlWithSchema(process.env.DATABASE_URL!, schema), REDIS_URL: process.env.REDIS_URL!, FULCRUM_QUEUE_NAME: queueName });
   } else {
     dataDir = await mkdtemp(join(tmpdir(), 'fulcrum-bench-api-'));
     Object.assign(env, { DATABASE_URL: '', REDIS_URL: '', FULCRUM_DATA_DIR: dataDir });
   }
 
-  let api: ChildProcess | undefined;
-  let worker: ChildProcess | undefined;
+  let api: MainProcess | undefined;
+  let worker: MainProcess | undefined;
+  /** `src/main.ts <command>` as in production, request logs at warn; two minutes to be ready. */
+  const start = (command: string, ready: (out: string) => boolean | Promise<boolean>) =>
+    startMain(command, { env: { LOG_LEVEL: 'warn', NODE_ENV: 'production', ...env }, ready, timeoutMs: 120_000 });
   try {
     console.log(`bench:api on ${backend}; load average at start: ${load()}`);
     const answers = async () => fetch(`${base}/healthz`).then((res) => res.ok, () => false);
-    api = await startProcess('serve', env, answers);
-    if (services) worker = await startProcess('worker', env, async (out) => out.includes('fit worker started'));
+    api = await start('serve', answers);
+    if (services) worker = await start('worker', (out) => out.includes('fit worker started'));
     const headers = { authorization: `Bearer ${KEY}`, 'content-type': 'application/json' };
     const call = async (method: string, path: string, body?: unknown, contentType?: string) => {
       const res = await fetch(base + path, {
@@ -264,18 +225,13 @@ async function main(): Promise<void> {
       `warm ${warmRps} req/s, p50 ${out.p50_ms} ms, p99 ${out.p99_ms} ms (${CONNECTIONS} connections, ${DURATION_S} s; refit still running at the end: ${refitRunning}); target ≥ 1000 req/s with p99 < 50 ms: ${warmRps >= 1000 && out.p99_ms < 50 ? 'met' : 'NOT met'}`,
     );
   } finally {
-    await stopProcess(api);
-    await stopProcess(worker);
+    await api?.stop(15_000);
+    await worker?.stop(15_000);
     if (services) {
       const db = await openDb({ databaseUrl: process.env.DATABASE_URL, poolSize: 1 });
       await dropSchema(db, schema);
       await db.close();
-      const redis = new Redis(process.env.REDIS_URL!);
-      for (const pattern of [`bull:${queueName}:*`, `fulcrum:${queueName}:*`]) {
-        const keys = await redis.keys(pattern);
-        if (keys.length > 0) await redis.del(...keys);
-      }
-      redis.disconnect();
+      await dropQueueKeys(process.env.REDIS_URL!, queueName);
     }
     if (dataDir) await rm(dataDir, { recursive: true, force: true });
   }

@@ -3,32 +3,17 @@
  * key once, answers, and exits cleanly on SIGTERM; `migrate` reports; `worker` without Redis
  * says what it needs; a bad environment is named.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
 import http from 'node:http';
 import { cp, mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { spawnMain } from '../../tools/process-helpers.js';
 import { pgliteTemplate } from './helpers/test-app.js';
 
-interface Run {
-  child: ChildProcess;
-  out: () => string;
-  exited: Promise<number | null>;
-}
-
-function run(args: string[], env: Record<string, string>): Run {
-  const child = spawn(process.execPath, ['--import', 'tsx', 'src/main.ts', ...args], {
-    cwd: process.cwd(),
-    env: { PATH: process.env.PATH ?? '', NODE_ENV: 'production', ...env },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  let text = '';
-  child.stdout!.on('data', (d) => (text += String(d)));
-  child.stderr!.on('data', (d) => (text += String(d)));
-  const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
-  return { child, out: () => text, exited };
-}
+/** The command line as a user runs it: nothing from this process's environment but PATH. */
+const run = (args: string[], env: Record<string, string>) =>
+  spawnMain(args, { PATH: process.env.PATH ?? '', NODE_ENV: 'production', ...env }, { inheritEnv: false });
 
 async function waitFor(pred: () => boolean, ms: number): Promise<void> {
   const end = Date.now() + ms;
@@ -51,10 +36,10 @@ describe('main entry points (embedded back end)', () => {
   it('serve prints the admin key once, answers with it, finishes an upload in flight on SIGTERM and exits 0', async () => {
     const r = run(['serve'], { FULCRUM_DATA_DIR: dir, PORT: '0', LOG_LEVEL: 'info' });
     try {
-      await waitFor(() => /Server listening at http:\/\/127\.0\.0\.1:\d+/.test(r.out()), 60_000);
-      const port = /Server listening at http:\/\/127\.0\.0\.1:(\d+)/.exec(r.out())![1];
-      const key = /(fk_[a-z2-9]+_[A-Za-z0-9_-]+)/.exec(r.out())![1];
-      expect(r.out().split(key).length - 1).toBe(1);
+      await waitFor(() => /Server listening at http:\/\/127\.0\.0\.1:\d+/.test(r.output()), 60_000);
+      const port = /Server listening at http:\/\/127\.0\.0\.1:(\d+)/.exec(r.output())![1];
+      const key = /(fk_[a-z2-9]+_[A-Za-z0-9_-]+)/.exec(r.output())![1];
+      expect(r.output().split(key).length - 1).toBe(1);
       const health = await fetch(`http://127.0.0.1:${port}/healthz`);
       expect(health.status).toBe(200);
       const keys = await fetch(`http://127.0.0.1:${port}/v1/keys`, { headers: { authorization: `Bearer ${key}` } });
@@ -77,16 +62,16 @@ describe('main entry points (embedded back end)', () => {
         upload.on('error', reject);
       });
       upload.write('region,prior_kwh\ncoast,3100\n');
-      await waitFor(() => r.out().includes('"path":"/v1/datasets"'), 20_000);
+      await waitFor(() => r.output().includes('"path":"/v1/datasets"'), 20_000);
       r.child.kill('SIGTERM');
-      await waitFor(() => r.out().includes('shutting down'), 20_000);
+      await waitFor(() => r.output().includes('shutting down'), 20_000);
       upload.end('valley,5200\n');
       const done = await answer;
       expect(done.status).toBe(201);
       expect(JSON.parse(done.body).dataset.rowCount).toBe(2);
       expect(await r.exited).toBe(0);
       // The key is in the terminal banner only: the request log never repeats it.
-      expect(r.out().split(key).length - 1).toBe(1);
+      expect(r.output().split(key).length - 1).toBe(1);
     } finally {
       if (r.child.exitCode === null) r.child.kill('SIGKILL');
     }
@@ -95,14 +80,14 @@ describe('main entry points (embedded back end)', () => {
   it('migrate reports that nothing is pending on a migrated database', async () => {
     const r = run(['migrate'], { FULCRUM_DATA_DIR: dir });
     expect(await r.exited).toBe(0);
-    expect(r.out()).toContain('No pending migrations');
+    expect(r.output()).toContain('No pending migrations');
   });
 
   it('worker without REDIS_URL says it needs Redis; a bad environment is named; an unknown command shows usage (all exit 2)', async () => {
     const [worker, bad, unknown] = [run(['worker'], {}), run(['serve'], { PORT: 'eighty' }), run(['fly'], {})];
     expect(await Promise.all([worker.exited, bad.exited, unknown.exited])).toEqual([2, 2, 2]);
-    expect(worker.out()).toMatch(/worker needs REDIS_URL/);
-    expect(bad.out()).toContain('PORT');
-    expect(unknown.out()).toContain('usage:');
+    expect(worker.output()).toMatch(/worker needs REDIS_URL/);
+    expect(bad.output()).toContain('PORT');
+    expect(unknown.output()).toContain('usage:');
   });
 });

@@ -10,7 +10,7 @@ import type { InjectOptions } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startFitRuntime } from '../../src/app/models/fit-runtime.js';
 import type { EffectCache } from '../../src/core/effects/effect-cache.js';
-import { generateScenario, scenarioCsv, SCENARIO_TRUE_EDGES } from '../../src/demo/scenario.js';
+import { fitScenarioModel } from './helpers/scenario-model.js';
 import { announceBackends, backends, bearer, startTestApp, type TestApp } from './helpers/test-app.js';
 
 announceBackends('query-errors');
@@ -35,28 +35,7 @@ describe.each(backends())('effect query errors on %s', (backend) => {
     });
     t = await startTestApp(backend, { logger: { level: 'info', stream } });
     await startFitRuntime({ models: t.app.models, inlineCompute: true });
-    const ds = await t.app.inject({
-      method: 'POST',
-      url: '/v1/datasets?name=scenario',
-      headers: { ...bearer(t.a.adminKey), 'content-type': 'text/csv' },
-      payload: scenarioCsv(generateScenario(300, 5)),
-    });
-    expect(ds.statusCode).toBe(201);
-    const model = await t.app.inject({
-      method: 'POST',
-      url: '/v1/models',
-      headers: bearer(t.a.adminKey),
-      payload: { name: 'm', datasetId: ds.json().dataset.id, fixedGraph: { edges: SCENARIO_TRUE_EDGES }, mechanisms: { family: 'linear' }, referenceRows: 200 },
-    });
-    expect(model.statusCode).toBe(202);
-    modelId = model.json().model.id;
-    let state = '';
-    for (let i = 0; i < 600 && state !== 'succeeded'; i++) {
-      state = (await t.app.inject({ method: 'GET', url: `/v1/jobs/${model.json().job.id}`, headers: bearer(t.a.adminKey) })).json().state;
-      expect(state).not.toBe('failed');
-      if (state !== 'succeeded') await new Promise((r) => setTimeout(r, 100));
-    }
-    expect(state).toBe('succeeded');
+    modelId = (await fitScenarioModel(t, t.a, { name: 'scenario', rows: 300, seed: 5 })).modelId;
   });
   afterAll(async () => {
     await t?.close();

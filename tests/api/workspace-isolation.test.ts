@@ -7,7 +7,7 @@
 import type { InjectOptions } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startFitRuntime } from '../../src/app/models/fit-runtime.js';
-import { generateScenario, scenarioCsv, SCENARIO_TRUE_EDGES } from '../../src/demo/scenario.js';
+import { fitScenarioModel } from './helpers/scenario-model.js';
 import { announceBackends, backends, bearer, HOUSEHOLDS_CSV, snapshot, startTestApp, type TestApp } from './helpers/test-app.js';
 
 announceBackends('workspace-isolation');
@@ -34,28 +34,7 @@ describe.each(backends())('workspace isolation on %s', (backend) => {
     keyB = (await t.app.inject({ method: 'GET', url: '/v1/keys', headers: bearer(t.b.adminKey) })).json().keys[0].id;
     // B also has a fitted model (fixed graph: quick), a fit job and a refit schedule.
     await startFitRuntime({ models: t.app.models, inlineCompute: true });
-    const bigB = await t.app.inject({
-      method: 'POST',
-      url: '/v1/datasets?name=b-scenario',
-      headers: { ...bearer(t.b.adminKey), 'content-type': 'text/csv' },
-      payload: scenarioCsv(generateScenario(300, 3)),
-    });
-    expect(bigB.statusCode).toBe(201);
-    const model = await t.app.inject({
-      method: 'POST',
-      url: '/v1/models',
-      headers: bearer(t.b.adminKey),
-      payload: { name: 'b-model', datasetId: bigB.json().dataset.id, fixedGraph: { edges: SCENARIO_TRUE_EDGES }, mechanisms: { family: 'linear' }, referenceRows: 200 },
-    });
-    expect(model.statusCode).toBe(202);
-    modelB = model.json().model.id;
-    jobB = model.json().job.id;
-    for (let i = 0; i < 600; i++) {
-      const j = await t.app.inject({ method: 'GET', url: `/v1/jobs/${jobB}`, headers: bearer(t.b.adminKey) });
-      if (j.json().state === 'succeeded') break;
-      expect(j.json().state).not.toBe('failed');
-      await new Promise((r) => setTimeout(r, 100));
-    }
+    ({ modelId: modelB, jobId: jobB } = await fitScenarioModel(t, t.b, { name: 'b-scenario', rows: 300, seed: 3 }));
     const sched = await t.app.inject({ method: 'PUT', url: `/v1/models/${modelB}/schedule`, headers: bearer(t.b.adminKey), payload: { cron: '0 3 * * *', timezone: 'UTC' } });
     expect(sched.statusCode).toBe(200);
     // A has objects of its own too, so "not found" cannot come from an empty workspace.
