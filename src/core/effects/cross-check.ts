@@ -9,6 +9,7 @@
  */
 import { aipwScores } from '../estimators/aipw.js';
 import type { ArmValue } from '../estimators/design-matrix.js';
+import { EstimatorInputError } from '../estimators/design-matrix.js';
 import type { ArmOverlap } from '../estimators/overlap.js';
 import type { ContinuousArm } from '../estimators/regression-adjustment.js';
 import { regressionScores } from '../estimators/regression-adjustment.js';
@@ -145,7 +146,9 @@ export function computeScores(
       note: null,
     };
   } catch (e) {
-    if (e instanceof RangeError) return { scores: null, note: `cross-check not available: ${e.message}` };
+    // Only the estimators' own refusals (too few rows in an arm, no variation left, …) make the
+    // cross-check unavailable; any other error is a bug and must not be hidden as a note.
+    if (e instanceof EstimatorInputError) return { scores: null, note: `cross-check not available: ${e.message}` };
     throw e;
   }
 }
