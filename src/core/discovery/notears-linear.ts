@@ -5,8 +5,8 @@ import { createAcyclicity, type AcyclicityForm } from './acyclicity.js';
 import type { CompiledKnowledge } from './knowledge.js';
 import type { Learner, LearnResult } from './learner.js';
 import { minimiseOwlqn } from './optim/owlqn.js';
-import { finishDag, frameToMatrix } from './notears-common.js';
-import { localSearch } from './notears-local-search.js';
+import { finishDag, frameToEncodedMatrix } from './notears-common.js';
+import { blockStrength, localSearch } from './notears-local-search.js';
 
 /**
  * Linear continuous-optimisation learner: least squares + L1 under a smooth acyclicity
@@ -26,8 +26,20 @@ import { localSearch } from './notears-local-search.js';
  * (notears-local-search.ts): the augmented Lagrangian alone can stop at points that are not
  * local minima over DAGs (on an exactly symmetric standardised pair it returned the empty graph).
  *
- * Every column is treated as numeric with a squared loss (binary as a linear probability
- * model, categorical by its centred level code); the notes say so when that happens.
+ * Every column is fitted with a squared loss. A categorical column with k ≥ 3 levels enters as
+ * k standardised indicator columns (notears-common.ts, frameToEncodedMatrix, says why k and why
+ * scaled), a binary one as one standardised column (a linear probability model). W is fitted over
+ * the encoded columns; the variable-level adjacency is the block aggregate
+ * A_ij = Σ_{a∈enc(i), b∈enc(j)} W_ab², and h is applied to A (d×d), so acyclicity holds over the
+ * original variables. Knowledge pins or frees whole blocks; the final threshold applies to the
+ * block norm √A_ij, which is |W_ij| for two single-column variables (all-continuous data give
+ * exactly the computation of the paper). The L1 penalty stays per entry: with all k indicators
+ * treated alike it does not depend on the level order either, it keeps OWL-QN (a group norm is
+ * not separable per coordinate, and OWL-QN's orthant step has no group analogue), and within a
+ * block it shrinks the level contrasts that the data do not support. Hence renumbering the
+ * levels of a column leaves the learned graph unchanged (tests/core/discovery/notears-linear-categorical.test.ts);
+ * with the level code as a number it did not, and a parent whose effect is not monotone in
+ * its code was missed.
  * The start is W = 0; the Rng is drawn from only to break exact ties in the local search
  * (x→y against y→x on a standardised pair), so results are deterministic given the seed.
  *
@@ -96,42 +108,55 @@ export const linearNotears: Learner<LinearNotearsOptions> = {
   name: 'linear-notears',
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<LinearNotearsOptions>, rng: Rng): LearnResult {
     const o = validate(options);
-    const { x, names, nonContinuous } = frameToMatrix(frame, knowledge, 'linear-notears');
+    const { x, names, start: blockStart, owner, expanded, scaled } = frameToEncodedMatrix(frame, knowledge, 'linear-notears');
     const d = names.length;
+    const D = x.cols;
     const n = frame.nRows;
-    const dd = d * d;
+    const DD = D * D;
     const S = gram(x);
-    for (let t = 0; t < dd; t++) S.data[t] /= n;
+    for (let t = 0; t < DD; t++) S.data[t] /= n;
 
-    const fixed = new Uint8Array(dd);
-    const l1 = new Float64Array(dd);
-    for (let t = 0; t < dd; t++) {
-      fixed[t] = knowledge.forbidden[t];
-      l1[t] = knowledge.required[t] === 1 ? 0 : o.lambda1;
+    // Entry (a, b) of the encoded W belongs to the variable pair (owner a, owner b): knowledge
+    // and the L1 weight are set per block, and h sees the block aggregate A_ij = Σ W_ab².
+    const blockOf = new Int32Array(DD);
+    const fixed = new Uint8Array(DD);
+    const l1 = new Float64Array(DD);
+    for (let a = 0; a < D; a++) {
+      for (let b = 0; b < D; b++) {
+        const t = a * D + b;
+        const ij = owner[a] * d + owner[b];
+        blockOf[t] = ij;
+        fixed[t] = knowledge.forbidden[ij];
+        l1[t] = knowledge.required[ij] === 1 ? 0 : o.lambda1;
+      }
     }
     const h = createAcyclicity(d, o.form);
-    const G = new Float64Array(dd);
-    const A = new Float64Array(dd);
-    const gA = new Float64Array(dd);
+    const G = new Float64Array(DD);
+    const A = new Float64Array(d * d);
+    const gA = new Float64Array(d * d);
     let rho = 1;
     let alpha = 0;
 
+    const aggregate = (w: Float64Array): void => {
+      A.fill(0);
+      for (let t = 0; t < DD; t++) A[blockOf[t]] += w[t] * w[t];
+    };
     const objective = (w: Float64Array, g: Float64Array): number => {
-      const loss = leastSquaresLoss(d, S.data, w, g, G);
-      for (let t = 0; t < dd; t++) A[t] = w[t] * w[t];
+      const loss = leastSquaresLoss(D, S.data, w, g, G);
+      aggregate(w);
       const hv = h(A, gA);
       if (!Number.isFinite(hv)) return Infinity;
       const c = rho * hv + alpha;
-      for (let t = 0; t < dd; t++) g[t] += 2 * c * w[t] * gA[t];
+      for (let t = 0; t < DD; t++) g[t] += 2 * c * w[t] * gA[blockOf[t]];
       return loss + 0.5 * rho * hv * hv + alpha * hv;
     };
     const hOf = (w: Float64Array): number => {
-      for (let t = 0; t < dd; t++) A[t] = w[t] * w[t];
+      aggregate(w);
       return h(A, gA);
     };
 
-    const w = new Float64Array(dd);
-    const wNew = new Float64Array(dd);
+    const w = new Float64Array(DD);
+    const wNew = new Float64Array(DD);
     let hCur = Infinity;
     let outer = 0;
     let inner = 0;
@@ -158,16 +183,23 @@ export const linearNotears: Learner<LinearNotearsOptions> = {
       `acyclicity ${o.form === 'expm' ? 'tr(e^{W∘W}) − d (Zheng et al. 2018)' : '−log det(I − W∘W) (Bello et al. 2022)'}; lambda1 = ${o.lambda1}; threshold |w| ≥ ${o.threshold}`,
     ];
     if (hCur > o.hTol) notes.push(`h did not reach ${o.hTol} before rho hit ${o.rhoMax}; cycles (if any) were removed after thresholding`);
-    if (nonContinuous.length > 0) notes.push(`columns ${nonContinuous.join(', ')} are binary/categorical and were treated as numeric with a squared loss`);
-    if (!o.localSearch) return finishDag('linear-notears', names, w, o.threshold, knowledge, notes);
-    const ls = localSearch({ d, S: S.data, w, l1, forbidden: knowledge.forbidden, required: knowledge.required, threshold: o.threshold, maxMoves: dd }, rng);
+    if (expanded.length > 0) {
+      notes.push(
+        `categorical columns ${expanded.join(', ')} enter as one standardised indicator per level; an edge to or from them is a block of weights, ` +
+          'its strength the block norm √(Σ w²) (unsigned), thresholded like |w|',
+      );
+    }
+    if (scaled.length > 0) notes.push(`binary columns ${scaled.join(', ')} were centred and scaled to sd 1 and fitted with a squared loss (linear probability model)`);
+    const blocks = { start: blockStart, owner };
+    if (!o.localSearch) return finishDag('linear-notears', names, blockStrength(d, blocks, w), o.threshold, knowledge, notes);
+    const ls = localSearch({ d, S: S.data, w, l1, forbidden: knowledge.forbidden, required: knowledge.required, threshold: o.threshold, maxMoves: d * d, blocks }, rng);
     notes.push(
       `local search on the thresholded DAG (lasso refit per node, then greedy additions and reversals): score ${ls.before.toFixed(4)} → ${ls.after.toFixed(4)}` +
         (ls.added.length > 0 ? `; added ${ls.added.map(([i, j]) => `${names[i]}→${names[j]}`).join(', ')}` : '; no edge added') +
         (ls.reversed.length > 0 ? `; reversed ${ls.reversed.map(([i, j]) => `${names[i]}→${names[j]}`).join(', ')}` : '') +
         (ls.pruned > 0 ? `; ${ls.pruned} edge(s) removed first to break cycles` : ''),
     );
-    return finishDag('linear-notears', names, ls.w, o.threshold, knowledge, notes);
+    return finishDag('linear-notears', names, blockStrength(d, blocks, ls.w), o.threshold, knowledge, notes);
   },
 };
 
