@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { compileKnowledge, type Knowledge } from '../../../src/core/discovery/knowledge.js';
 import { learn } from '../../../src/core/discovery/learn.js';
 import { linearNotears } from '../../../src/core/discovery/notears-linear.js';
+import { frameToEncodedMatrix } from '../../../src/core/discovery/notears-common.js';
 import { isAcyclicAdjacency } from '../../../src/core/discovery/prune-cycles.js';
 import { makeFrame, type Column, type Frame } from '../../../src/core/frame/frame.js';
 import { standardise } from '../../../src/core/frame/standardise.js';
@@ -161,5 +162,45 @@ describe('linear-notears with categorical columns', () => {
     expect(Array.from(asCat.graph.adj)).toEqual([0, 1, 0, 0]);
     // One column either way, standardised: the strengths agree up to the sign of the indicator.
     expect(Math.abs(asCat.weights![1])).toBeCloseTo(Math.abs(asBinary.weights![1]), 10);
+  });
+
+  it('knowledge is pinned per variable pair: a forbidden true edge into and out of a categorical block stays out, a required one is in', () => {
+    const knowledge: Knowledge = { forbidden: [['c', 'y']], required: [['s', 'z']], tiers: [['x', 's'], ['c'], ['y'], ['z'], ['t']] };
+    const k = compileKnowledge(names, knowledge);
+    const res = linearNotears.learn(base, k, {}, Rng.create(4));
+    const got = edgeList(res.graph.adj, names);
+    expect(got).not.toContain('c→y');
+    expect(got).toContain('s→z');
+    for (let t = 0; t < 36; t++) if (k.forbidden[t] === 1) expect(res.graph.adj[t]).toBe(0);
+    // s is independent of z in the generator, so the required block is weak and the notes say so.
+    expect(res.notes.join(' ')).toMatch(/required edges kept although.*s→z/);
+    expect(isAcyclicAdjacency(6, res.graph.adj)).toBe(true);
+  });
+
+  it('encoding: a k-level block has covariance I − qqᵀ (q_l = √share), binary is scaled to sd 1, absent levels give no column', () => {
+    const codes = [0, 0, 0, 1, 1, 3, 3, 3, 3, 3, 0, 1]; // level 2 never occurs
+    const n = codes.length;
+    const bin = [1, 0, 0, 1, 0, 0, 0, 1, 0, 0, 0, 0];
+    const cont = codes.map((c, r) => c * 0.5 + r);
+    const frame = makeFrame([
+      { name: 'u', kind: 'continuous', values: Float64Array.from(cont) },
+      { name: 'c', kind: 'categorical', values: Float64Array.from(codes), levels: ['a', 'b', 'c', 'd'] },
+      { name: 'b', kind: 'binary', values: Float64Array.from(bin) },
+      { name: 'k', kind: 'categorical', values: new Float64Array(n), levels: ['only', 'never'] },
+    ]);
+    const enc = frameToEncodedMatrix(frame, compileKnowledge(['u', 'c', 'b', 'k']), 'test');
+    expect(Array.from(enc.start)).toEqual([0, 1, 4, 5, 6]);
+    const D = enc.x.cols;
+    const col = (a: number) => Array.from({ length: n }, (_, r) => enc.x.data[r * D + a]);
+    const cov = (a: number, b: number) => col(a).reduce((s, v, r) => s + v * col(b)[r], 0) / n;
+    const meanU = cont.reduce((a, b) => a + b, 0) / n;
+    col(0).forEach((v, r) => expect(v).toBeCloseTo(cont[r] - meanU, 12)); // continuous: centred only
+    const shares = [0, 1, 3].map((l) => codes.filter((c) => c === l).length / n);
+    for (let p = 0; p < 3; p++) {
+      for (let q = 0; q < 3; q++) expect(cov(1 + p, 1 + q)).toBeCloseTo((p === q ? 1 : 0) - Math.sqrt(shares[p] * shares[q]), 12);
+    }
+    expect(cov(4, 4)).toBeCloseTo(1, 12);
+    expect(col(5).every((v) => v === 0)).toBe(true);
+    expect(enc.expanded).toEqual(['c (3 levels)']);
   });
 });
