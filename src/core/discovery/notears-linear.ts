@@ -27,19 +27,20 @@ import { blockStrength, localSearch } from './notears-local-search.js';
  * local minima over DAGs (on an exactly symmetric standardised pair it returned the empty graph).
  *
  * Every column is fitted with a squared loss. A categorical column with k ≥ 3 levels enters as
- * k standardised indicator columns (notears-common.ts, frameToEncodedMatrix, says why k and why
- * scaled), a binary one as one standardised column (a linear probability model). W is fitted over
- * the encoded columns; the variable-level adjacency is the block aggregate
- * A_ij = Σ_{a∈enc(i), b∈enc(j)} W_ab², and h is applied to A (d×d), so acyclicity holds over the
- * original variables. Knowledge pins or frees whole blocks; the final threshold applies to the
- * block norm √A_ij, which is |W_ij| for two single-column variables (all-continuous data give
- * exactly the computation of the paper). The L1 penalty stays per entry: with all k indicators
- * treated alike it does not depend on the level order either, it keeps OWL-QN (a group norm is
- * not separable per coordinate, and OWL-QN's orthant step has no group analogue), and within a
- * block it shrinks the level contrasts that the data do not support. Hence renumbering the
- * levels of a column leaves the learned graph unchanged (tests/core/discovery/notears-linear-categorical.test.ts);
- * with the level code as a number it did not, and a parent whose effect is not monotone in
- * its code was missed.
+ * k indicator columns, centred and divided by √share (frameToEncodedMatrix in notears-common.ts
+ * says why k and why that scale); a binary one as one column scaled to sd 1 (a linear
+ * probability model). W is fitted over the encoded columns; the variable-level adjacency is the
+ * block aggregate A_ij = Σ_{a∈enc(i), b∈enc(j)} W_ab², and h is applied to A (d×d), so
+ * acyclicity holds over the original variables. Knowledge pins or frees whole blocks; the final
+ * threshold applies to the block norm √A_ij, which is |W_ij| for two single-column variables
+ * (on all-continuous data the computation is the single-column one, bit for bit).
+ * The L1 penalty stays per entry rather than a group norm per block: with all k indicators
+ * treated alike it does not depend on the level order either; it keeps OWL-QN, whose orthant
+ * step has no analogue for a group norm; and inside a block it still zeroes level contrasts the
+ * data do not support. So renumbering the levels of a column leaves the learned graph unchanged
+ * (tests/core/discovery/notears-linear-categorical.test.ts); with the level code used as a
+ * number it did not, and a parent whose effect is not monotone in its code was missed.
+ *
  * The start is W = 0; the Rng is drawn from only to break exact ties in the local search
  * (x→y against y→x on a standardised pair), so results are deterministic given the seed.
  *
@@ -50,7 +51,10 @@ import { blockStrength, localSearch } from './notears-local-search.js';
 export interface LinearNotearsOptions {
   /** L1 weight λ. Default 0.1 (the value used in the paper's experiments). */
   readonly lambda1: number;
-  /** Final threshold on |W_ij| (standardised data). Default 0.3, the paper's value. */
+  /**
+   * Final threshold on |W_ij| (standardised data), or on the block norm √(Σ W_ab²) for a pair with a
+   * categorical variable. Default 0.3, the paper's value.
+   */
   readonly threshold: number;
   /**
    * Acyclicity function. Default 'logdet' (Bello et al. 2022, s = 1): on our development runs
@@ -180,12 +184,12 @@ export const linearNotears: Learner<LinearNotearsOptions> = {
 
     const notes = [
       `augmented Lagrangian: ${outer + 1} outer iterations, ${inner} OWL-QN iterations, ${evaluations} evaluations; final h = ${hCur.toExponential(3)}, rho = ${rho.toExponential(1)}`,
-      `acyclicity ${o.form === 'expm' ? 'tr(e^{W∘W}) − d (Zheng et al. 2018)' : '−log det(I − W∘W) (Bello et al. 2022)'}; lambda1 = ${o.lambda1}; threshold |w| ≥ ${o.threshold}`,
+      `acyclicity ${o.form === 'expm' ? 'tr(e^{W∘W}) − d (Zheng et al. 2018)' : '−log det(I − W∘W) (Bello et al. 2022)'}; lambda1 = ${o.lambda1} per entry of W; threshold |w| (block norm for categorical pairs) ≥ ${o.threshold}`,
     ];
     if (hCur > o.hTol) notes.push(`h did not reach ${o.hTol} before rho hit ${o.rhoMax}; cycles (if any) were removed after thresholding`);
     if (expanded.length > 0) {
       notes.push(
-        `categorical columns ${expanded.join(', ')} enter as one standardised indicator per level; an edge to or from them is a block of weights, ` +
+        `categorical columns ${expanded.join(', ')} enter as one indicator per level (centred, divided by √share, so the block is isotropic); an edge to or from them is a block of weights, ` +
           'its strength the block norm √(Σ w²) (unsigned), thresholded like |w|',
       );
     }
