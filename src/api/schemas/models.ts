@@ -24,7 +24,7 @@ export const CreateModelBody = z
     outcome: Variable.optional().describe('Outcome of interest.'),
     knowledge: Knowledge.optional(),
     fixedGraph: z.object({ edges: z.array(Edge).max(10_000) }).strict().optional().describe('Skip learning: use exactly these edges (weight 1).'),
-    learner: z.enum(['auto', 'pc', 'linear-notears', 'mlp-notears', 'direct-lingam']).optional().describe('Graph learner; auto picks one from the data and says why.'),
+    learner: z.enum(['auto', 'pc', 'linear-notears', 'mlp-notears', 'direct-lingam', 'cam']).optional().describe('Graph learner; auto picks one from the data and says why.'),
     learnerOptions: z.record(z.string(), z.union([z.number(), z.string(), z.boolean()])).optional(),
     replicates: z.number().int().min(1).max(200).optional().describe('Bootstrap replicates (default 20).'),
     mechanisms: z

@@ -3,7 +3,7 @@ import type { Graph, GraphKind } from '../graph/graph.js';
 import type { Rng } from '../random/rng.js';
 import type { CompiledKnowledge } from './knowledge.js';
 
-export type LearnerName = 'pc' | 'linear-notears' | 'mlp-notears' | 'direct-lingam' | 'auto';
+export type LearnerName = 'pc' | 'linear-notears' | 'mlp-notears' | 'direct-lingam' | 'cam' | 'auto';
 
 /** How missing cells were handled before learning. */
 export interface MissingReport {

@@ -1,3 +1,4 @@
+import { cam } from './cam.js';
 import { directLingam } from './direct-lingam.js';
 import type { Learner, LearnerName } from './learner.js';
 import { linearNotears } from './notears-linear.js';
@@ -16,10 +17,11 @@ export const LEARNERS: Readonly<Record<ConcreteLearnerName, Learner<any>>> = {
   'direct-lingam': directLingam,
   'linear-notears': linearNotears,
   'mlp-notears': mlpNotears,
+  cam,
 };
 
 /** Names `learn` accepts, 'auto' included. */
-export const LEARNER_NAMES: readonly LearnerName[] = ['pc', 'direct-lingam', 'linear-notears', 'mlp-notears', 'auto'];
+export const LEARNER_NAMES: readonly LearnerName[] = ['pc', 'direct-lingam', 'linear-notears', 'mlp-notears', 'cam', 'auto'];
 
 /** The learner called `name`; a RangeError naming the known learners otherwise. */
 export function getLearner(name: string): Learner<any> {
