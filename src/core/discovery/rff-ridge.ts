@@ -39,11 +39,8 @@ export interface RffRidgeOptions {
 }
 
 export interface RffRidge {
-  /**
-   * Held-out mean squared error of column `target` regressed on columns `inputs` (none: the
-   * variance); with `residuals` (length n), also each row's held-out squared residual.
-   */
-  heldOutMse(target: number, inputs: readonly number[], residuals?: Float64Array): number;
+  /** Held-out mean squared error of column `target` regressed on columns `inputs` (none: the variance). */
+  heldOutMse(target: number, inputs: readonly number[]): number;
   /** Number of regressions fitted so far. */
   readonly fits: () => number;
 }
@@ -108,7 +105,7 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
   const sse = new Float64Array(combos);
   let count = 0;
 
-  function heldOutMse(target: number, inputs: readonly number[], residuals?: Float64Array): number {
+  function heldOutMse(target: number, inputs: readonly number[]): number {
     count++;
     const s = inputs.length;
     const p = s === 0 ? 0 : s * (1 + A) + K;
@@ -172,24 +169,20 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
       for (let i = 0; i < w; i++) totSum[i] += S[i];
     }
     sse.fill(0);
-    for (let f = 0; f < V; f++) foldError(f, p, s, -1);
+    for (let f = 0; f < V; f++) foldError(f, p, s);
     let best = 0;
     for (let g = 1; g < combos; g++) if (sse[g] < sse[best]) best = g;
-    if (residuals) for (let f = 0; f < V; f++) foldError(f, p, s, best, residuals);
     return sse[best] / n;
   }
 
-  /**
-   * Adds fold f's held-out squared error to sse[g] for every combo (only) g, or with `only` ≥ 0
-   * writes that combo's held-out squared residuals into `out`, by original row.
-   */
-  function foldError(f: number, p: number, s: number, only: number, out?: Float64Array): void {
+  /** Adds fold f's held-out squared error to sse[g] for every penalty combination g. */
+  function foldError(f: number, p: number, s: number): void {
     const w = p + 1;
     const G = foldGram[f];
     const S = foldSum[f];
     const m = n - (bounds[f + 1] - bounds[f]);
     for (let i = 0; i < w; i++) mu[i] = (totSum[i] - S[i]) / m;
-    for (let g = only < 0 ? 0 : only; g < (only < 0 ? combos : only + 1); g++) {
+    for (let g = 0; g < combos; g++) {
       for (let i = 0; i < p; i++) {
         const gi = i * w;
         for (let j = i; j < p; j++) a[i * p + j] = totGram[gi + j] - G[gi + j] - m * mu[i] * mu[j];
@@ -204,7 +197,6 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
         for (let q = 0; q < p; q++) pred += beta[q] * (feat[o + q] - mu[q]);
         const res = feat[o + p] - pred;
         e += res * res;
-        if (out) out[perm[r]] = res * res;
       }
       sse[g] += e;
     }
