@@ -42,14 +42,14 @@ const configs: Config[] = [
     id: 'mlp-er20',
     label: 'nonlinear MLP, ER d=20, 40 edges, n=2000, Gaussian noise',
     data: { graph: 'er', nodes: 20, expectedEdges: 40, rows: 2000, mechanism: 'mlp', noise: 'gaussian' },
-    learners: ['mlp-notears', 'pc', 'linear-notears', 'direct-lingam'],
+    learners: ['cam', 'mlp-notears', 'pc', 'linear-notears', 'direct-lingam', 'auto'],
   },
   {
     id: 'smooth-er10',
     // Noise variance 0.5: inside the range used for GP-mechanism data by Lachapelle et al. 2020 (from memory).
     label: 'random smooth (RFF-GP), ER d=10, 40 edges, n=1000, Gaussian noise sd 0.71',
     data: { graph: 'er', nodes: 10, expectedEdges: 40, rows: 1000, mechanism: 'smooth', noise: 'gaussian', noiseScale: Math.SQRT1_2 },
-    learners: ['mlp-notears', 'pc', 'linear-notears', 'direct-lingam'],
+    learners: ['cam', 'mlp-notears', 'pc', 'linear-notears', 'direct-lingam', 'auto'],
   },
   {
     id: 'linear-uniform-er20',
@@ -169,7 +169,7 @@ if (!only || only.includes('sachs')) {
     .slice(1)
     .map((l) => l.split(',') as [string, string]);
   const truth = graphFromEdges(names, truthEdges);
-  const learners = [...['pc', 'direct-lingam', 'linear-notears', 'mlp-notears'].filter((l) => available.has(l as 'pc')), 'auto', 'r2-sort-regress', 'empty'];
+  const learners = [...['pc', 'direct-lingam', 'linear-notears', 'mlp-notears', 'cam'].filter((l) => available.has(l as 'pc')), 'auto', 'r2-sort-regress', 'empty'];
   for (const learner of learners) {
     try {
       const { graph, seconds, cpu, chose } = runOne(learner, frame, 1);
@@ -205,7 +205,8 @@ interface Speed {
   note?: string;
 }
 const speed: Speed[] = [];
-const nonlinear = available.has('mlp-notears') ? 'mlp-notears' : null;
+// The nonlinear learner `auto` picks for nonlinear data (auto.ts): cam, else mlp-notears.
+const nonlinear = available.has('cam') ? 'cam' : available.has('mlp-notears') ? 'mlp-notears' : null;
 if (!only || only.includes('speed')) {
   if (nonlinear) {
     const ds = generateDataset(configs[0].data, 77);
@@ -238,7 +239,7 @@ if (nonlinear && !quick && (!only || only.includes('ensemble'))) {
   };
   process.once('SIGTERM', stop);
   process.once('SIGINT', stop);
-  const set = await runBootstrap(ds.frame, {}, { learner: nonlinear as 'mlp-notears' }, {
+  const set = await runBootstrap(ds.frame, {}, { learner: nonlinear as 'cam' }, {
     replicates: 20,
     seed: 1,
     threads: 2,
