@@ -42,9 +42,13 @@ import { createRffRidge } from './rff-ridge.js';
  *
  * Tuning (our own runs with src/core/synthetic, seeds 501–505 — the benchmark uses 1001–1005 and
  * 77–79 — standardised data; medians over the 5 seeds):
- *   random-MLP ER d=20, ~45 edges, n=2000, orientation F1: greedy edges alone 0.66–0.71 (most
- *     wrong-order errors there are chains flipped as a whole, which single-edge moves do not
- *     undo); with the order search 0.77–0.82.
+ *   random-MLP ER d=20, ~45 edges, n=2000, orientation F1: step 1 alone 0.66–0.71 (its graph
+ *     scored worse than the true one on most seeds: a search, not a score, failure); with steps
+ *     2–3 0.77–0.85. The order search itself moved 0–14 nodes per run; most of the gain came
+ *     from choosing each node's parents afresh among its step-1 neighbours and pruning.
+ *   joint Fourier features only (no additive part): adding a true parent could raise the
+ *     held-out error by 10–20% (the joint features of a larger set do not contain those of a
+ *     smaller one); the additive terms make the fits nest.
  *   random smooth (RFF-GP) ER d=10, ~40 edges, n=1000, SHD: 9 (mostly missed weak edges); a
  *     minimum gain of 0.003 for adding an edge raised it to 11, a paired significance test as
  *     pruning rule to 15–19.
