@@ -19,7 +19,9 @@ import { createRffRidge } from './rff-ridge.js';
  * additive and joint random-Fourier-feature terms, ridge, 5-fold cross-validation). Unlike CAM,
  * f_j is not restricted to a sum of one-variable functions: random-MLP and random-smooth
  * mechanisms are not additive. Steps:
- * 1. CAM's greedy edge addition, then hill climbing with removals and reversals (cam-search.ts);
+ * 1. optionally CAM's preliminary neighbourhood selection (each node's candidate parents: the
+ *    inputs that best predict it alone; off by default), CAM's greedy edge addition, then hill
+ *    climbing with removals and reversals (cam-search.ts);
  * 2. local search over causal orders by moving one node at a time (cam-order.ts), each node
  *    regressed on its predecessors among its neighbours in the graph of step 1 (CAM's
  *    preliminary neighbourhood selection, with the step-1 graph as the neighbourhood);
@@ -72,6 +74,12 @@ export interface CamOptions {
   readonly pruneGain: number;
   /** Sweeps of the order search (0 skips step 2). Default 4. */
   readonly orderSweeps: number;
+  /**
+   * Candidate parents per node in step 1 (preliminary neighbourhood selection). Default: no
+   * limit — 10 of 19 cut the CPU time at d=20 by 40% but the orientation F1 on the tuning seeds
+   * from 0.83 to 0.69 (true parents that predict a node poorly on their own were dropped).
+   */
+  readonly candidates: number;
   /** Most parents per node in step 1. Default: no limit. */
   readonly maxParents: number;
   /** Rows used (evenly spaced) when the data have more. Default 5000. */
@@ -88,6 +96,7 @@ export const CAM_DEFAULTS: CamOptions = {
   orderGain: 0.003,
   pruneGain: 0.005,
   orderSweeps: 4,
+  candidates: Infinity,
   maxParents: Infinity,
   maxRows: 5000,
 };
@@ -110,6 +119,7 @@ function validate(o: Partial<CamOptions>): CamOptions {
   for (const k of ['edgeGain', 'orderGain', 'pruneGain'] as const) {
     if (typeof v[k] !== 'number' || !(v[k] >= 0) || !Number.isFinite(v[k])) throw new RangeError(`cam: ${k} must be a finite number ≥ 0, got ${String(v[k])}`);
   }
+  if (!(v.candidates >= 1) || (v.candidates !== Infinity && !Number.isInteger(v.candidates))) throw new RangeError(`cam: candidates must be an integer ≥ 1, got ${v.candidates}`);
   if (!Number.isInteger(v.orderSweeps) || v.orderSweeps < 0) throw new RangeError(`cam: orderSweeps must be an integer ≥ 0, got ${v.orderSweeps}`);
   if (!(v.maxParents >= 1) || (v.maxParents !== Infinity && !Number.isInteger(v.maxParents))) throw new RangeError(`cam: maxParents must be an integer ≥ 1, got ${v.maxParents}`);
   if (!Number.isInteger(v.maxRows) || v.maxRows < 20) throw new RangeError(`cam: maxRows must be an integer ≥ 20, got ${v.maxRows}`);
@@ -152,9 +162,20 @@ export const cam: Learner<CamOptions> = {
       return v;
     };
 
-    // Step 1: greedy edge addition and hill climbing over all allowed pairs.
-    const all = Array.from({ length: d }, () => new Uint8Array(d).fill(1));
-    const step1 = searchDag(d, knowledge, all, score, o.edgeGain, o.maxParents, 10 * d * d);
+    // Preliminary neighbourhood selection (CAM's PNS, their §4.1, with held-out single-input
+    // gains in place of boosting): node j's candidate parents are the `candidates` allowed
+    // inputs that best predict it alone.
+    const cand = Array.from({ length: d }, (_, j) => {
+      const c = new Uint8Array(d);
+      const base = score(j, []);
+      const ranked: Array<[number, number]> = [];
+      for (let i = 0; i < d; i++) if (i !== j && knowledge.forbidden[i * d + j] === 0) ranked.push([i, base - score(j, [i])]);
+      ranked.sort((a, b) => b[1] - a[1] || a[0] - b[0]);
+      for (let t = 0; t < ranked.length && t < o.candidates; t++) c[ranked[t][0]] = 1;
+      return c;
+    });
+    // Step 1: greedy edge addition and hill climbing.
+    const step1 = searchDag(d, knowledge, cand, score, o.edgeGain, o.maxParents, 10 * d * d);
     // Step 2: order search, each node's inputs limited to its step-1 neighbours.
     const near = Array.from({ length: d }, (_, j) => {
       const c = new Uint8Array(d);

@@ -127,6 +127,7 @@ describe('cam learner', () => {
       [{ edgeGain: Number.NaN }, /edgeGain/],
       [{ orderSweeps: -1 }, /orderSweeps/],
       [{ maxParents: 0 }, /maxParents/],
+      [{ candidates: 0 }, /candidates/],
       [{ maxRows: 5 }, /maxRows/],
     ];
     for (const [o, msg] of bad) {
