@@ -8,9 +8,12 @@ import type { NodeScore } from './cam-search.js';
  * CAM's PNS) and allowed by the knowledge. Move: take one node out and insert it at another
  * position (moving a node past several others flips several edges at once, which single-edge
  * moves on DAGs cannot do); apply a node's best move when it lowers the score by more than
- * `minGain`; sweep until a sweep changes nothing or `maxSweeps` is reached. Orders that put a
- * required edge's head before its tail, or a later tier before an earlier one, are skipped, so
- * the order always respects the knowledge. Returns the final order and the number of moves.
+ * `minGain`; sweep until a sweep changes nothing or `maxSweeps` is reached. Moves that would put
+ * a required edge's head before its tail, or a later tier before an earlier one, are skipped, so
+ * an order that respects the knowledge keeps respecting it (cam.ts starts from a topological
+ * order of a graph that contains the required edges, taken tier by tier; only a directed path
+ * through untiered nodes can force a later tier first, and no edge between the two tiers is
+ * allowed anyway). Returns the final order and the number of moves.
  */
 export function searchOrder(
   start: readonly number[],

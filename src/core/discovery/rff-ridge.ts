@@ -8,17 +8,18 @@ import type { Rng } from '../random/rng.js';
  * cos(ω_k·x/ℓ + b_k), ω_k ~ N(0, I), b_k ~ U(0, 2π) (Rahimi & Recht 2007), so ridge regression on
  * them approximates kernel ridge regression with a squared-exponential kernel of length-scale ℓ —
  * a joint, not additive, function of the inputs (random-MLP and random-smooth mechanisms are not
- * additive). The features come in groups, one per length-scale, each group with its own ridge
- * penalty; the linear terms get a vanishing one. Ω and b are drawn once per learner run, one ω
- * entry per (feature, variable), so the features of a set do not depend on the order in which sets
- * are fitted (deterministic given the Rng).
+ * additive) — in groups, one per length-scale — and an additive part, cos(a·x_v) and sin(a·x_v)
+ * per input, so that the fit on a set contains the additive fit on any subset (joint features
+ * alone do not nest: adding an input changes every one of them). Ω and b are drawn once per
+ * learner run, one ω entry per (feature, variable), so the features of a set do not depend on the
+ * order in which sets are fitted (deterministic given the Rng).
  *
- * Fit quality: V-fold cross-validation on a fixed random split (the fold grams are summed once,
- * so V folds cost about what one fit costs). The penalties (one per group, all
- * combinations of the grid, so a group can be switched off by a large penalty) are chosen by the
- * pooled held-out squared error, and that error divided by n is the returned variance. A held-out
- * error is not lowered by inputs that do not help, so larger parent sets are not favoured by
- * overfitting.
+ * Fit quality: V-fold cross-validation on a fixed random split (the per-fold grams are summed
+ * once, so V folds cost about what one fit costs). The ridge penalty — shared, or one per group
+ * with all combinations of the grid tried — is chosen by the pooled held-out squared error, and
+ * that error divided by n is the returned variance; the linear terms get a vanishing penalty. A
+ * held-out error is not lowered by inputs that do not help, so larger parent sets are not
+ * favoured by overfitting.
  */
 export interface RffRidgeOptions {
   /**
@@ -61,9 +62,8 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
     groupOf[k] = Math.floor(k / options.features);
     groupScale[k] = 1 / options.lengthScales[groupOf[k]];
   }
-  // Every combination of one penalty per group: combo c gives group g the penalty index
-  // floor(c / L^g) mod L.
-  // With one penalty per group: all combinations, so a group can be switched off by a large one.
+  // Penalty combination c: shared, penalties[c]; per group, group g gets penalties[floor(c / L^g) mod L]
+  // (all combinations, so a group can be switched off by a large penalty).
   const L = options.penalties.length;
   let combos = 1;
   for (let g = 0; g < groups; g++) combos *= options.penaltyPerGroup ? L : 1;
