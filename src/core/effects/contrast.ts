@@ -91,6 +91,20 @@ export function contrast(
   let rows = 0;
   let mA = 0;
   let mB = 0;
+  // The rows in the segment, listed once: a segment is often a small share of the rows.
+  let idx: Int32Array;
+  if (mask === null) idx = identityRows(R);
+  else {
+    let n = 0;
+    for (let r = 0; r < R; r++) if (mask[r] === 1) n++;
+    idx = new Int32Array(n);
+    n = 0;
+    for (let r = 0; r < R; r++) if (mask[r] === 1) idx[n++] = r;
+  }
+  const cnt = idx.length;
+  // Graphs that share an adjustment set share its scores: one score contrast per set.
+  const byScores = new Map<unknown, ReturnType<typeof scoreContrast>>();
+  const vals = u.values;
   for (let g = 0; g < G; g++) {
     const base = g * A * R;
     const yi = base + i * R;
@@ -99,21 +113,19 @@ export function contrast(
     let s = 0;
     let si = 0;
     let sj = 0;
-    let cnt = 0;
-    for (let r = 0; r < R; r++) {
-      if (mask !== null && mask[r] !== 1) continue;
+    for (let k = 0; k < cnt; k++) {
+      const r = idx[k];
       const w = weights[r];
       sw += w;
-      si += w * u.values[yi + r];
-      sj += w * u.values[yj + r];
-      cnt++;
+      si += w * vals[yi + r];
+      sj += w * vals[yj + r];
     }
     const meanI = si / sw;
     const meanJ = sj / sw;
     const m = meanI - meanJ;
-    for (let r = 0; r < R; r++) {
-      if (mask !== null && mask[r] !== 1) continue;
-      const d = u.values[yi + r] - u.values[yj + r] - m;
+    for (let k = 0; k < cnt; k++) {
+      const r = idx[k];
+      const d = vals[yi + r] - vals[yj + r] - m;
       s += weights[r] * weights[r] * d * d;
     }
     rows = cnt;
@@ -126,11 +138,15 @@ export function contrast(
       const sc = check.scores;
       let subMask: Uint8Array | undefined;
       if (mask !== null && sc.identityRows) subMask = mask;
-      else if (mask !== null) {
+      else if (mask !== null && !byScores.has(sc)) {
         subMask = new Uint8Array(sc.n);
         for (let k = 0; k < sc.n; k++) subMask[k] = mask[sc.rows[k]];
       }
-      const c = scoreContrast(sc, i, j, level, sc.weights, subMask);
+      let c = byScores.get(sc);
+      if (c === undefined) {
+        c = scoreContrast(sc, i, j, level, sc.weights, subMask);
+        byScores.set(sc, c);
+      }
       let disagrees = false;
       if (Number.isFinite(c.se)) {
         const sampling = Math.max(seG, c.se);
@@ -181,4 +197,11 @@ export function contrast(
     rows,
     perGraph,
   };
+}
+
+let identity = new Int32Array(0);
+/** 0..R−1, kept between calls (contrasts over all rows are the common case). */
+function identityRows(R: number): Int32Array {
+  if (identity.length !== R) identity = Int32Array.from({ length: R }, (_, r) => r);
+  return identity;
 }

@@ -180,6 +180,8 @@ function assignmentValue(
   const R = weights.length;
   const mu = new Float64Array(G);
   const se = new Float64Array(G);
+  // Graphs sharing an adjustment set share its scores: their standard error is computed once.
+  const scoreSe = new Map<object, number>();
   for (let g = 0; g < G; g++) {
     const base = g * A1 * R;
     let sw = 0;
@@ -199,7 +201,10 @@ function assignmentValue(
     }
     let seG = R > 1 ? Math.sqrt((ss * R) / (R - 1)) / sw : 0;
     const sc = checks && u.causalPath[g] === 1 ? checks[g].scores : null;
-    if (sc) {
+    const known = sc ? scoreSe.get(sc) : undefined;
+    if (known !== undefined) {
+      if (Number.isFinite(known)) seG = Math.max(seG, known);
+    } else if (sc) {
       let cw = 0;
       let cs = 0;
       const n = sc.n;
@@ -216,6 +221,7 @@ function assignmentValue(
         css += sc.weights[k] * sc.weights[k] * v * v;
       }
       const cse = n > 1 ? Math.sqrt((css * n) / (n - 1)) / cw : 0;
+      scoreSe.set(sc, cse);
       if (Number.isFinite(cse)) seG = Math.max(seG, cse);
     }
     if (u.causalPath[g] !== 1) {
