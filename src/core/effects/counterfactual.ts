@@ -246,11 +246,20 @@ function simulateChangedRows(
   // Rows the arm leaves as they are: the observed outcome.
   out.set(ref.subarray(y * R, (y + 1) * R), o);
   if (n > 0 && yAffected) {
-    for (let c = 0; c < p; c++) {
-      const src = c * R;
-      const dst = c * n;
-      for (let i = 0; i < n; i++) sub[dst + i] = work[src + rows[i]];
-    }
+    // Columns are gathered on first use: a mechanism's inputs only, and none after a memo hit.
+    const have = new Uint8Array(p);
+    const gatherInputs = (m: number): void => {
+      const po = model.mechTable[m * MECH_STRIDE + MECH_PARENT_OFFSET];
+      const pc = model.mechTable[m * MECH_STRIDE + MECH_PARENT_COUNT];
+      for (let q = 0; q < pc; q++) {
+        const v = model.mechParents[po + q];
+        if (have[v] === 1) continue;
+        have[v] = 1;
+        const src = v * R;
+        const dst = v * n;
+        for (let i = 0; i < n; i++) sub[dst + i] = work[src + rows[i]];
+      }
+    };
     const gatherNoise = (m: number): void => {
       const off = m * R;
       for (let i = 0; i < n; i++) noise[i] = model.referenceNoise[off + rows[i]];
@@ -259,17 +268,20 @@ function simulateChangedRows(
     for (let k = 0; k < affected.length; k++) {
       const j = affected[k];
       if (j === y) continue;
+      have[j] = 1;
       const hit = armMemo ? armMemo.get(sig[j]) : undefined;
       if (hit) {
         sub.set(hit, j * n);
         continue;
       }
       const m = model.mechanismOf[g * p + j];
+      gatherInputs(m);
       mechanismOutput(model, m, sub, n, hidden, mean);
       gatherNoise(m);
       applyNoise(model, j, mean, noise, 0, n, sub, j * n);
       if (armMemo) armMemo.set(sig[j], sub.slice(j * n, (j + 1) * n));
     }
+    gatherInputs(yMech);
     mechanismOutput(model, yMech, sub, n, hidden, mean);
     gatherNoise(yMech);
     for (let i = 0; i < n; i++) out[o + rows[i]] = mean[i] + noise[i];
