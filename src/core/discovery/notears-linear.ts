@@ -2,9 +2,9 @@ import type { Frame } from '../frame/frame.js';
 import { gram } from '../linalg/matmul.js';
 import type { Rng } from '../random/rng.js';
 import { createAcyclicity, type AcyclicityForm } from './acyclicity.js';
+import { augmentedLagrangian, type PenaltyState } from './augmented-lagrangian.js';
 import type { CompiledKnowledge } from './knowledge.js';
 import type { Learner, LearnResult } from './learner.js';
-import { minimiseOwlqn } from './optim/owlqn.js';
 import { finishDag, frameToEncodedMatrix } from './notears-common.js';
 import { blockStrength, localSearch } from './notears-local-search.js';
 
@@ -138,8 +138,7 @@ export const linearNotears: Learner<LinearNotearsOptions> = {
     const G = new Float64Array(DD);
     const A = new Float64Array(d * d);
     const gA = new Float64Array(d * d);
-    let rho = 1;
-    let alpha = 0;
+    const pen: PenaltyState = { rho: 1, alpha: 0 };
 
     const aggregate = (w: Float64Array): void => {
       A.fill(0);
@@ -150,9 +149,9 @@ export const linearNotears: Learner<LinearNotearsOptions> = {
       aggregate(w);
       const hv = h(A, gA);
       if (!Number.isFinite(hv)) return Infinity;
-      const c = rho * hv + alpha;
+      const c = pen.rho * hv + pen.alpha;
       for (let t = 0; t < DD; t++) g[t] += 2 * c * w[t] * gA[blockOf[t]];
-      return loss + 0.5 * rho * hv * hv + alpha * hv;
+      return loss + 0.5 * pen.rho * hv * hv + pen.alpha * hv;
     };
     const hOf = (w: Float64Array): number => {
       aggregate(w);
@@ -160,30 +159,11 @@ export const linearNotears: Learner<LinearNotearsOptions> = {
     };
 
     const w = new Float64Array(DD);
-    const wNew = new Float64Array(DD);
-    let hCur = Infinity;
-    let outer = 0;
-    let inner = 0;
-    let evaluations = 0;
-    for (; outer < o.maxOuter; outer++) {
-      let hNew = Infinity;
-      while (rho < o.rhoMax) {
-        wNew.set(w);
-        const res = minimiseOwlqn(objective, wNew, { l1, fixed, maxIter: o.maxInner, fTol: o.innerTol, memory: 5 });
-        inner += res.iterations;
-        evaluations += res.evaluations;
-        hNew = hOf(wNew);
-        if (hNew > 0.25 * hCur) rho *= 10;
-        else break;
-      }
-      w.set(wNew);
-      hCur = hNew;
-      alpha += rho * hCur;
-      if (hCur <= o.hTol || rho >= o.rhoMax) break;
-    }
+    const run = augmentedLagrangian(w, pen, objective, hOf, { l1, fixed, maxIter: o.maxInner, fTol: o.innerTol, memory: 5 }, o);
+    const hCur = run.h;
 
     const notes = [
-      `augmented Lagrangian: ${outer + 1} outer iterations, ${inner} OWL-QN iterations, ${evaluations} evaluations; final h = ${hCur.toExponential(3)}, rho = ${rho.toExponential(1)}`,
+      `augmented Lagrangian: ${run.outer + 1} outer iterations, ${run.inner} OWL-QN iterations, ${run.evaluations} evaluations; final h = ${hCur.toExponential(3)}, rho = ${run.rho.toExponential(1)}`,
       `acyclicity ${o.form === 'expm' ? 'tr(e^{W∘W}) − d (Zheng et al. 2018)' : '−log det(I − W∘W) (Bello et al. 2022)'}; lambda1 = ${o.lambda1} per entry of W; threshold |w| (block norm for categorical pairs) ≥ ${o.threshold}`,
     ];
     if (hCur > o.hTol) notes.push(`h did not reach ${o.hTol} before rho hit ${o.rhoMax}; cycles (if any) were removed after thresholding`);

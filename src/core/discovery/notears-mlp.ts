@@ -1,11 +1,11 @@
 import type { Frame } from '../frame/frame.js';
 import type { Rng } from '../random/rng.js';
 import { createAcyclicity, type AcyclicityForm } from './acyclicity.js';
+import { augmentedLagrangian, type PenaltyState } from './augmented-lagrangian.js';
 import type { CompiledKnowledge } from './knowledge.js';
 import type { Learner, LearnResult } from './learner.js';
 import { checkKnowledge, finishDag } from './notears-common.js';
 import { buildLayout, createScratch, mlpLoss } from './notears-mlp-net.js';
-import { minimiseOwlqn } from './optim/owlqn.js';
 
 /**
  * Nonlinear continuous-optimisation learner (Zheng, Dan, Aragam, Ravikumar & Xing 2020,
@@ -145,8 +145,7 @@ export const mlpNotears: Learner<MlpNotearsOptions> = {
     const h = createAcyclicity(d, o.form);
     const A = new Float64Array(dd);
     const gA = new Float64Array(dd);
-    let rho = 1;
-    let alpha = 0;
+    const pen: PenaltyState = { rho: 1, alpha: 0 };
     const objective = (th: Float64Array, g: Float64Array): number => {
       let f = mlpLoss(L, th, g, A, scratch, frozen, o.loss === 'likelihood');
       const hv = h(A, gA);
@@ -158,8 +157,8 @@ export const mlpNotears: Learner<MlpNotearsOptions> = {
         l2 += th[t] * th[t];
         g[t] += lam2 * th[t];
       }
-      f += 0.5 * lam2 * l2 + 0.5 * rho * hv * hv + alpha * hv;
-      const cst = rho * hv + alpha;
+      f += 0.5 * lam2 * l2 + 0.5 * pen.rho * hv * hv + pen.alpha * hv;
+      const cst = pen.rho * hv + pen.alpha;
       if (cst !== 0) {
         for (let j = 0; j < d; j++) {
           const w1 = paramOffset[j];
@@ -183,37 +182,18 @@ export const mlpNotears: Learner<MlpNotearsOptions> = {
       return h(A, gA);
     };
 
-    const thNew = new Float64Array(nParams);
     // Keep the start inside the log-det domain ρ(A) < 1 (the init aims at ρ(A) ≈ 0.1; halve if not).
     for (let tries = 0; tries < 60 && !Number.isFinite(hOf(theta)); tries++) {
       for (let t = 0; t < nParams; t++) if (l1[t] > 0 || isW1(t)) theta[t] *= 0.5;
     }
-    let hCur = Infinity;
-    let outer = 0;
-    let inner = 0;
-    let evaluations = 0;
-    for (; outer < o.maxOuter; outer++) {
-      let hNew = Infinity;
-      while (rho < o.rhoMax) {
-        thNew.set(theta);
-        const res = minimiseOwlqn(objective, thNew, { l1, fixed, maxIter: o.maxInner, fTol: o.innerTol, memory: 10 });
-        inner += res.iterations;
-        evaluations += res.evaluations;
-        hNew = hOf(thNew);
-        if (hNew > 0.25 * hCur) rho *= 10;
-        else break;
-      }
-      theta.set(thNew);
-      hCur = hNew;
-      alpha += rho * hCur;
-      if (hCur <= o.hTol || rho >= o.rhoMax) break;
-    }
+    const run = augmentedLagrangian(theta, pen, objective, hOf, { l1, fixed, maxIter: o.maxInner, fTol: o.innerTol, memory: 10 }, o);
+    const hCur = run.h;
 
     hOf(theta);
     const strength = new Float64Array(dd);
     for (let t = 0; t < dd; t++) strength[t] = Math.sqrt(A[t]);
     const notes = [
-      `augmented Lagrangian: ${outer + 1} outer iterations, ${inner} OWL-QN iterations, ${evaluations} evaluations; final h = ${hCur.toExponential(3)}, rho = ${rho.toExponential(1)}`,
+      `augmented Lagrangian: ${run.outer + 1} outer iterations, ${run.inner} OWL-QN iterations, ${run.evaluations} evaluations; final h = ${hCur.toExponential(3)}, rho = ${run.rho.toExponential(1)}`,
       `MLP per node: ${m} sigmoid hidden units; lambda1 = ${o.lambda1}, lambda2 = ${o.lambda2}; acyclicity ${o.form}; threshold √A ≥ ${o.threshold}`,
     ];
     if (hCur > o.hTol) notes.push(`h did not reach ${o.hTol} before rho hit ${o.rhoMax}; cycles (if any) were removed after thresholding`);
