@@ -93,6 +93,7 @@ export function simulateArms(
   const de = descendantMask(model, g, [t]);
   const yKind = model.kinds[y];
   const yMech = model.mechanismOf[g * p + y];
+  const yAffected = affected.includes(y);
   const tOff = t * R;
   // Signature of each affected node: its mechanism and, per parent, the parent's signature
   // (affected), 'T' (the treatment) or '' (observed value, the same in every graph).
@@ -152,18 +153,14 @@ export function simulateArms(
       default:
         throw new RangeError(`unknown arm action ${arm.action}`);
     }
-    if (changedRowsOnly && yKind === KIND_CONTINUOUS && simulateChangedRows(model, g, t, y, affected, sig, scratch, out, a * R, armMemo)) {
+    if (changedRowsOnly && yKind === KIND_CONTINUOUS && simulateChangedRows(model, g, t, y, yAffected, affected, sig, scratch, out, a * R, armMemo)) {
       work.set(ref.subarray(tOff, tOff + R), tOff);
       continue;
     }
     // Nodes on a path to the outcome (the outcome itself is handled below).
-    let yAffected = false;
     for (let k = 0; k < affected.length; k++) {
       const j = affected[k];
-      if (j === y) {
-        yAffected = true;
-        continue;
-      }
+      if (j === y) continue;
       const hit = armMemo ? armMemo.get(sig[j]) : undefined;
       if (hit) {
         work.set(hit, j * R);
@@ -219,6 +216,7 @@ function simulateChangedRows(
   g: number,
   t: number,
   y: number,
+  yAffected: boolean,
   affected: Int32Array,
   sig: readonly string[],
   scratch: SimulationScratch,
@@ -234,8 +232,6 @@ function simulateChangedRows(
   let n = 0;
   for (let r = 0; r < R; r++) if (work[tOff + r] !== ref[tOff + r]) rows[n++] = r;
   if (n === R) return false;
-  let yAffected = false;
-  for (let k = 0; k < affected.length; k++) if (affected[k] === y) yAffected = true;
   const yMech = model.mechanismOf[g * p + y];
   const yKey = yAffected ? `y:${sig[y]}` : `y:${yMech}`;
   const yHit = armMemo ? armMemo.get(yKey) : undefined;

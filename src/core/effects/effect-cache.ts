@@ -40,6 +40,8 @@ export class EffectCache {
   private readonly units = new Map<string, UnitOutcomes>();
   private readonly checks = new Map<string, CrossCheckEntry[]>();
   private readonly scoreMemo = new Map<string, Pick<CrossCheckEntry, 'scores' | 'note'>>();
+  /** Per (treatment, outcome): each graph's adjustment set, found once for the simulation's path flags and the cross-check. */
+  private readonly adjustments = new Map<string, AdjustmentSet[]>();
   private frame: Frame | null = null;
   private scratch: SimulationScratch | null = null;
 
@@ -56,6 +58,17 @@ export class EffectCache {
       throw new InterventionError(`outcome "${this.model.names[y]}" is categorical: name the level whose probability is the outcome`);
     }
     return valueCode(this.model, y, outcomeLevel);
+  }
+
+  private adjustmentsFor(t: number, y: number): AdjustmentSet[] {
+    const key = `${t}|${y}`;
+    let adj = this.adjustments.get(key);
+    if (!adj) {
+      adj = Array.from({ length: this.model.nGraphs }, (_, g) => graphAdjustment(this.model, g, t, y));
+      if (this.adjustments.size >= MAX_CACHED_CONTRASTS) this.adjustments.delete(this.adjustments.keys().next().value as string);
+      this.adjustments.set(key, adj);
+    }
+    return adj;
   }
 
   /** Simulated outcomes for the arms (simulating on the first request). */
@@ -79,7 +92,8 @@ export class EffectCache {
     for (let g = 0; g < G; g++) {
       simulateArms(model, g, t, y, lv, resolved, this.scratch, values.subarray(g * A * R, (g + 1) * A * R), memo);
     }
-    for (let g = 0; g < G; g++) causal[g] = graphAdjustment(model, g, t, y).causalPath ? 1 : 0;
+    const adj = this.adjustmentsFor(t, y);
+    for (let g = 0; g < G; g++) causal[g] = adj[g].causalPath ? 1 : 0;
     const entry: UnitOutcomes = { treatment: t, outcome: y, outcomeLevel: lv, arms: resolved, values, causalPath: causal, pathProbability: pathProbability(model, t, y) };
     if (this.units.size >= MAX_CACHED_CONTRASTS) {
       const oldest = this.units.keys().next().value as string;
@@ -108,8 +122,9 @@ export class EffectCache {
     const out = new Array<CrossCheckEntry>(G);
     const order = Array.from({ length: G }, (_, g) => g).sort((a, b) => model.graphWeights[b] - model.graphWeights[a] || a - b);
     const scored: AdjustmentSet[] = [];
+    const adjustments = this.adjustmentsFor(u.treatment, u.outcome);
     for (const g of order) {
-      const own: AdjustmentSet = graphAdjustment(model, g, u.treatment, u.outcome);
+      const own = adjustments[g];
       if (!own.causalPath) {
         out[g] = { adjustment: own, scores: null, note: `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero` };
         continue;

@@ -3,6 +3,21 @@ import { Matrix as MlMatrix, solve } from 'ml-matrix';
 import { minimiseOwlqn } from '../../../src/core/discovery/optim/owlqn.js';
 import { Rng } from '../../../src/core/random/rng.js';
 
+/** (1/2n)‖y − Xb‖² and its gradient, X row-major n × p: the lasso tests' smooth part. */
+function leastSquares(X: Float64Array, y: Float64Array, n: number, p: number) {
+  return (b: Float64Array, g: Float64Array): number => {
+    g.fill(0);
+    let s = 0;
+    for (let r = 0; r < n; r++) {
+      let e = -y[r];
+      for (let c = 0; c < p; c++) e += X[r * p + c] * b[c];
+      s += (0.5 * e * e) / n;
+      for (let c = 0; c < p; c++) g[c] += (e * X[r * p + c]) / n;
+    }
+    return s;
+  };
+}
+
 describe('OWL-QN', () => {
   it('with λ = 0 finds the minimum of the Rosenbrock function at (1, 1)', () => {
     const x = Float64Array.from([-1.2, 1]);
@@ -54,17 +69,7 @@ describe('OWL-QN', () => {
       for (let c = 0; c < p; c++) X[r * p + c] = 0.6 * z + rng.normal();
       y[r] = 1.5 * X[r * p] - 0.8 * X[r * p + 2] + rng.normal();
     }
-    const f = (b: Float64Array, g: Float64Array): number => {
-      g.fill(0);
-      let s = 0;
-      for (let r = 0; r < n; r++) {
-        let e = -y[r];
-        for (let c = 0; c < p; c++) e += X[r * p + c] * b[c];
-        s += (0.5 * e * e) / n;
-        for (let c = 0; c < p; c++) g[c] += (e * X[r * p + c]) / n;
-      }
-      return s;
-    };
+    const f = leastSquares(X, y, n, p);
     const lam = 0.1;
     const b = new Float64Array(p);
     minimiseOwlqn(f, b, { l1: lam, fTol: 1e-15, gradTol: 1e-9 });
@@ -95,17 +100,7 @@ describe('OWL-QN', () => {
       for (let c = 0; c < p; c++) X[r * p + c] = 0.7 * z + rng.normal();
       y[r] = 0.9 * X[r * p] + 1.2 * X[r * p + 1] - 0.6 * X[r * p + 3] + rng.normal();
     }
-    const f = (b: Float64Array, g: Float64Array): number => {
-      g.fill(0);
-      let s = 0;
-      for (let r = 0; r < n; r++) {
-        let e = -y[r];
-        for (let c = 0; c < p; c++) e += X[r * p + c] * b[c];
-        s += (0.5 * e * e) / n;
-        for (let c = 0; c < p; c++) g[c] += (e * X[r * p + c]) / n;
-      }
-      return s;
-    };
+    const f = leastSquares(X, y, n, p);
     const lam = 0.1;
     const fixed = Uint8Array.from([0, 1, 0, 0, 0]); // the strongest predictor is pinned at 0
     const b = new Float64Array(p);

@@ -39,6 +39,21 @@ describe('fitPropensity one-vs-rest', () => {
       expect(pm.params[c * 3 + 2]).toBeCloseTo(ref.coef[1], 5);
     }
     expect(Number.isNaN(pm.params[3])).toBe(false);
+    // Outside truth: the penalised score equations Σ (1{T = c} − p) = 0 and
+    // Σ x_j (1{T = c} − p) = λ β_j hold at the fit (to the Newton tolerance, 1e-5 on the coefficients).
+    for (const c of [0, 2]) {
+      const score = [0, 0, 0];
+      for (let r = 0; r < x.rows; r++) {
+        const z = pm.params[c * 3] + pm.params[c * 3 + 1] * x.data[r * 2] + pm.params[c * 3 + 2] * x.data[r * 2 + 1];
+        const res = (codes[r] === c ? 1 : 0) - 1 / (1 + Math.exp(-z));
+        score[0] += res;
+        score[1] += res * x.data[r * 2];
+        score[2] += res * x.data[r * 2 + 1];
+      }
+      expect(Math.abs(score[0])).toBeLessThan(1e-2);
+      expect(Math.abs(score[1] - 1e-4 * pm.params[c * 3 + 1])).toBeLessThan(1e-2);
+      expect(Math.abs(score[2] - 1e-4 * pm.params[c * 3 + 2])).toBeLessThan(1e-2);
+    }
   });
 
   it('warm-started from a fit on other rows (another fold) reaches the same optimum', () => {
