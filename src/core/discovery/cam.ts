@@ -84,6 +84,11 @@ export interface CamOptions {
   readonly maxParents: number;
   /** Rows used (evenly spaced) when the data have more. Default 5000. */
   readonly maxRows: number;
+  /**
+   * Which observation each row copies, when the rows are a bootstrap resample (learn.ts passes
+   * it through from replicate.ts): copies share a cross-validation fold (rff-ridge.ts says why).
+   */
+  readonly copyOf?: Int32Array;
 }
 
 export const CAM_DEFAULTS: CamOptions = {
@@ -123,6 +128,7 @@ function validate(o: Partial<CamOptions>): CamOptions {
   if (!Number.isInteger(v.orderSweeps) || v.orderSweeps < 0) throw new RangeError(`cam: orderSweeps must be an integer ≥ 0, got ${v.orderSweeps}`);
   if (!(v.maxParents >= 1) || (v.maxParents !== Infinity && !Number.isInteger(v.maxParents))) throw new RangeError(`cam: maxParents must be an integer ≥ 1, got ${v.maxParents}`);
   if (!Number.isInteger(v.maxRows) || v.maxRows < 20) throw new RangeError(`cam: maxRows must be an integer ≥ 20, got ${v.maxRows}`);
+  if (v.copyOf !== undefined && !(v.copyOf instanceof Int32Array)) throw new RangeError('cam: copyOf must be an Int32Array of row numbers');
   return v;
 }
 
@@ -150,7 +156,13 @@ export const cam: Learner<CamOptions> = {
       for (let r = 0; r < n; r++) w[r] = (w[r] - mu) * inv;
       cols.push(w);
     }
-    const reg = createRffRidge(cols, { features: o.features, lengthScales: o.lengthScales, additive: o.additive, penalties: o.penalties, folds: o.folds, penaltyPerGroup: false }, rng);
+    let copyOf: Int32Array | undefined;
+    if (o.copyOf) {
+      if (o.copyOf.length !== nAll) throw new RangeError(`cam: copyOf has ${o.copyOf.length} entries for ${nAll} rows`);
+      copyOf = new Int32Array(n);
+      for (let r = 0; r < n; r++) copyOf[r] = o.copyOf[Math.floor((r * nAll) / n)];
+    }
+    const reg = createRffRidge(cols, { features: o.features, lengthScales: o.lengthScales, additive: o.additive, penalties: o.penalties, folds: o.folds, penaltyPerGroup: false, copyOf }, rng);
     const cache = new Map<string, number>();
     const score = (j: number, inputs: readonly number[]): number => {
       const key = `${j}:${inputs.join(',')}`;

@@ -30,6 +30,12 @@ export interface LearnOptions {
    * "Beware of the simulated DAG!", NeurIPS). Weights are then in standard-deviation units.
    */
   readonly standardise?: boolean;
+  /**
+   * Which observation each row copies, when the frame is a bootstrap resample (replicate.ts
+   * sets it to the resample's row indices). Learners that hold rows out (cam) keep the copies
+   * of one observation on the same side; the others ignore it.
+   */
+  readonly copyOf?: Int32Array;
   /** Learner-specific options. */
   readonly [option: string]: unknown;
 }
@@ -50,7 +56,10 @@ export class LearnerContractError extends Error {
 export function learn(frame: Frame, knowledge: Knowledge, options: LearnOptions): LearnResult {
   const names = frame.columns.map((c) => c.name);
   const compiled = compileKnowledge(names, knowledge);
-  const { learner: requested, seed, missing: scheme, standardise: doStandardise, ...learnerOptions } = options;
+  const { learner: requested, seed, missing: scheme, standardise: doStandardise, copyOf, ...learnerOptions } = options;
+  if (copyOf !== undefined && (!(copyOf instanceof Int32Array) || copyOf.length !== frame.nRows)) {
+    throw new RangeError(`learn: copyOf must be an Int32Array with one entry per row (${frame.nRows})`);
+  }
   const seedValue = seed ?? 0;
   if (!Number.isFinite(seedValue)) throw new TypeError(`learn: seed must be a finite number, got ${String(seed)}`);
   if (frame.nRows < 3) throw new RangeError(`learn: need at least 3 rows, got ${frame.nRows}`);
@@ -69,7 +78,8 @@ export function learn(frame: Frame, knowledge: Knowledge, options: LearnOptions)
     notes.push(`auto: chose ${choice.learner}`);
   }
   const learner = getLearner(name);
-  const result = learner.learn(data, compiled, learnerOptions, Rng.create(seedValue));
+  const kept = copyOf && data.nRows < frame.nRows ? keptCopies(frame, copyOf) : copyOf;
+  const result = learner.learn(data, compiled, kept ? { ...learnerOptions, copyOf: kept } : learnerOptions, Rng.create(seedValue));
   checkResult(result, compiled);
   return {
     ...result,
@@ -115,4 +125,15 @@ function hasCycle(adj: Uint8Array, n: number): boolean {
     for (let v = 0; v < n; v++) if (adj[u * n + v] === 1 && --indeg[v] === 0) queue.push(v);
   }
   return seen < n;
+}
+
+/** `copyOf` of the rows that listwise deletion keeps (those with no missing cell). */
+function keptCopies(frame: Frame, copyOf: Int32Array): Int32Array {
+  const out: number[] = [];
+  for (let r = 0; r < frame.nRows; r++) {
+    let complete = true;
+    for (const c of frame.columns) if (c.values[r] !== c.values[r]) complete = false;
+    if (complete) out.push(copyOf[r]);
+  }
+  return Int32Array.from(out);
 }

@@ -100,11 +100,14 @@ export function runReplicate(task: ReplicateTask, learner?: ReplicateLearner<any
   if (!Number.isInteger(task.replicateIndex) || task.replicateIndex < 0) {
     throw new RangeError(`replicateIndex must be a whole number ≥ 0, got ${task.replicateIndex}`);
   }
-  const sample = takeRows(frame, resampleIndices(frame.nRows, task.seed, task.replicateIndex));
+  const rows = resampleIndices(frame.nRows, task.seed, task.replicateIndex);
+  const sample = takeRows(frame, rows);
   const rng = replicateLearnerRng(task.seed, task.replicateIndex);
   if (learner) {
     const names = frame.columns.map((c) => c.name);
     return learner.learn(sample, compileKnowledge(names, task.knowledge), task.options, rng);
   }
-  return learn(sample, task.knowledge, { ...task.options, seed: rng.nextU32() });
+  // copyOf: the source row of every resampled row, so that a learner that cross-validates keeps
+  // the copies of one observation in one fold (rff-ridge.ts).
+  return learn(sample, task.knowledge, { ...task.options, seed: rng.nextU32(), copyOf: rows });
 }

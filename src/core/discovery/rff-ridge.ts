@@ -37,6 +37,13 @@ export interface RffRidgeOptions {
   readonly penaltyPerGroup: boolean;
   /** Cross-validation folds (≥ 2). */
   readonly folds: number;
+  /**
+   * Optional: `copyOf[r]` names the observation row r is a copy of (a bootstrap resample's
+   * source row). Copies of one observation share a fold: were they split, a held-out row would
+   * have its twin in the training rows, and any input that helps memorise rows — a spurious
+   * parent — would look as if it predicted unseen data.
+   */
+  readonly copyOf?: Int32Array;
 }
 
 export interface RffRidge {
@@ -78,11 +85,7 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
   }
   // Fold split: rows in a random order, fold f holding positions [bounds[f], bounds[f+1]).
   const V = options.folds;
-  const perm = new Int32Array(n);
-  for (let r = 0; r < n; r++) perm[r] = r;
-  rng.shuffle(perm);
-  const bounds = new Int32Array(V + 1);
-  for (let f = 0; f <= V; f++) bounds[f] = Math.floor((f * n) / V);
+  const { perm, bounds } = options.copyOf ? groupedFolds(options.copyOf, n, V, rng) : plainFolds(n, V, rng);
   const omega = new Float64Array(K * d);
   for (let t = 0; t < omega.length; t++) omega[t] = rng.normal();
   const phase = new Float64Array(K);
@@ -236,4 +239,44 @@ function solveUpper(A: Float64Array, b: Float64Array, x: Float64Array, p: number
     for (let k = i + 1; k < p; k++) s -= A[ip + k] * x[k];
     x[i] = s / A[ip + i];
   }
+}
+
+/** Rows in a random order, cut into V folds of (nearly) equal size. */
+function plainFolds(n: number, V: number, rng: Rng): { perm: Int32Array; bounds: Int32Array } {
+  const perm = new Int32Array(n);
+  for (let r = 0; r < n; r++) perm[r] = r;
+  rng.shuffle(perm);
+  const bounds = new Int32Array(V + 1);
+  for (let f = 0; f <= V; f++) bounds[f] = Math.floor((f * n) / V);
+  return { perm, bounds };
+}
+
+/**
+ * Folds that keep the copies of one observation together: the observations in a random order,
+ * each with all its copies, each fold closed once it holds its share of the n rows.
+ */
+function groupedFolds(copyOf: Int32Array, n: number, V: number, rng: Rng): { perm: Int32Array; bounds: Int32Array } {
+  if (copyOf.length !== n) throw new RangeError(`rff-ridge: copyOf has ${copyOf.length} entries for ${n} rows`);
+  const rowsOf = new Map<number, number[]>();
+  for (let r = 0; r < n; r++) {
+    const list = rowsOf.get(copyOf[r]);
+    if (list) list.push(r);
+    else rowsOf.set(copyOf[r], [r]);
+  }
+  const groups = [...rowsOf.values()];
+  if (groups.length < V) throw new RangeError(`rff-ridge: ${groups.length} distinct observations cannot fill ${V} folds`);
+  const order = new Int32Array(groups.length);
+  for (let g = 0; g < order.length; g++) order[g] = g;
+  rng.shuffle(order);
+  const perm = new Int32Array(n);
+  const bounds = new Int32Array(V + 1);
+  let t = 0;
+  let f = 0;
+  for (let k = 0; k < order.length; k++) {
+    // Close fold f once it has its share, leaving at least one observation per later fold.
+    while (f < V - 1 && (t >= ((f + 1) * n) / V || order.length - k <= V - 1 - f) && t > bounds[f]) bounds[++f] = t;
+    for (const r of groups[order[k]]) perm[t++] = r;
+  }
+  while (f < V) bounds[++f] = t;
+  return { perm, bounds };
 }

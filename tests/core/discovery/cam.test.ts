@@ -59,7 +59,55 @@ describe('rff-ridge held-out variance', () => {
   });
 });
 
+describe('rff-ridge on a bootstrap resample', () => {
+  // x and y are independent by construction, so x cannot predict y on observations the fit has
+  // not seen: held out, adding x should not lower the error. A resample holds copies of rows;
+  // split across folds, a copy in the training rows lets the fit memorise its held-out twin.
+  const opts = { features: 30, lengthScales: [0.7, 1.4, 2.9], additive: [0.5, 1, 2], penalties: [1e-4, 1e-3, 1e-2, 1e-1], folds: 5, penaltyPerGroup: false };
+  function gains(grouped: boolean): number[] {
+    const out: number[] = [];
+    for (let seed = 1; seed <= 8; seed++) {
+      const rng = Rng.create(seed);
+      const n = 400;
+      const x = Float64Array.from({ length: n }, () => rng.normal());
+      const y = Float64Array.from({ length: n }, () => rng.normal());
+      const rows = Int32Array.from({ length: n }, () => rng.int(n));
+      const cols = [Float64Array.from(rows, (i) => x[i]), Float64Array.from(rows, (i) => y[i])];
+      const reg = createRffRidge(cols, grouped ? { ...opts, copyOf: rows } : opts, Rng.create(9));
+      out.push(Math.log(reg.heldOutMse(1, [])) - Math.log(reg.heldOutMse(1, [0])));
+    }
+    return out;
+  }
+  const mean = (v: number[]) => v.reduce((a, b) => a + b, 0) / v.length;
+
+  it('keeps the copies of one observation in one fold, so an independent input does not seem to help', () => {
+    expect(mean(gains(true))).toBeLessThan(0);
+    // Without the grouping the leak shows: the independent input "improves" the held-out error.
+    expect(mean(gains(false))).toBeGreaterThan(0);
+  });
+
+  it('rejects a copyOf of the wrong length', () => {
+    const c = Float64Array.from({ length: 20 }, (_, i) => i);
+    expect(() => createRffRidge([c, c], { ...opts, copyOf: new Int32Array(19) }, Rng.create(1))).toThrow(/copyOf has 19 entries for 20 rows/);
+  });
+});
+
 describe('cam learner', () => {
+  it('bootstrap of independent columns: edges stay rare (copies of a row share a fold)', async () => {
+    // Four mutually independent Gaussian columns: the true graph is empty, and cam finds no
+    // edge on this sample itself. With bootstrap copies split across folds, the replicates
+    // found edges at a mean probability of 0.33 (up to 0.7 for one edge).
+    const rng = Rng.create(23);
+    const n = 300;
+    const frame = makeFrame([0, 1, 2, 3].map((j) => cont(`x${j}`, Float64Array.from({ length: n }, () => rng.normal()))));
+    expect(learn(frame, {}, { learner: 'cam', seed: 1 }).graph.adj.every((v) => v === 0)).toBe(true);
+    const set = await runBootstrap(frame, {}, { learner: 'cam' }, { replicates: 10, seed: 4, threads: 1 });
+    const p = Array.from(set.edgeProbability);
+    expect(Math.max(...p)).toBeLessThanOrEqual(0.3);
+    expect(p.reduce((a, b) => a + b, 0) / 12).toBeLessThanOrEqual(0.1);
+  });
+
+
   it('recovers a nonlinear chain, fork and collider with Gaussian noise, directions included', () => {
     const cases: Array<[string, ReadonlyArray<(x: number[]) => number>, string[]]> = [
       ['chain', chain, ['x0→x1', 'x1→x2']],

@@ -135,4 +135,16 @@ describe('learn(frame, knowledge, options)', () => {
     expect(() => checkResult(fake, k)).toThrow(LearnerContractError);
     expect(() => checkResult(fake, k)).toThrow(/forbidden a→b present; required c→d missing/);
   });
+
+  it('passes copyOf to the learner, subset to the rows listwise deletion keeps', () => {
+    const f = data(60, 10);
+    expect(() => learn(f, {}, { learner: 'pc', copyOf: new Int32Array(59) })).toThrow(/copyOf must be an Int32Array with one entry per row \(60\)/);
+    // Rows 0..29 copy observation 0..29 twice over; drop row 5 (a missing cell): cam then sees
+    // 59 rows and a copyOf of 59 entries (were it not subset, cam would refuse its length).
+    const withGap = { ...f, columns: f.columns.map((c, k) => (k === 0 ? { ...c, values: Float64Array.from(c.values, (v, r) => (r === 5 ? NaN : v)) } : c)) };
+    const copyOf = Int32Array.from({ length: 60 }, (_, r) => r % 30);
+    const res = learn(withGap, {}, { learner: 'cam', missing: 'drop-rows', copyOf });
+    expect(res.missing.rowsAffected).toBe(1);
+    expect(res.notes.join(' ')).toMatch(/on 59 rows/);
+  });
 });
