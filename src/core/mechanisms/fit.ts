@@ -26,7 +26,7 @@ import type { Rng } from '../random/rng.js';
 import { logisticRegression } from '../stats/logistic-regression.js';
 import { softmaxRegression } from '../stats/softmax-regression.js';
 import { fitLinear } from './linear.js';
-import { trainMlp } from './mlp.js';
+import { trainMlp, type MlpFit } from './mlp.js';
 import { predictMechanism, sigmoid } from './predict.js';
 import { residualSample, residualSigma } from './residual-noise.js';
 import { type FittedMechanism, type MechanismOptions, resolveMechanismOptions, type ResolvedMechanismOptions } from './types.js';
@@ -56,8 +56,9 @@ export function fitMechanism(
   const { train, valid } = split(x.rows, opts.validationShare, rng);
   const binary = kind === 'binary';
   const mlp = trainMlp(x, y, binary, train, valid, opts, rng);
+  const net = networkMechanism(mlp, x, binary, opts.hidden);
   if (family === 'auto') {
-    const cmp = compareHeldOut(x, y, binary, mlp.params, mlp.yCentre, mlp.yScale, opts.hidden, valid);
+    const cmp = compareHeldOut(net, x, y, valid);
     // Keep the MLP only for a clear held-out gain: above the margin and one standard error
     // of the paired per-row loss differences.
     const margin = binary ? 0.002 : 0.005 * cmp.linearLoss;
@@ -65,41 +66,39 @@ export function fitMechanism(
       return binary ? fitLogistic(x, y, opts, -cmp.linearLoss) : fitLinear(x, y, opts, cmp.linearLoss);
     }
   }
-  return mlpMechanism(x, y, binary, mlp.params, mlp.yCentre, mlp.yScale, binary ? -mlp.heldOutLoss : mlp.heldOutLoss, opts);
+  return withNoise(net, x, y, binary ? -mlp.heldOutLoss : mlp.heldOutLoss, opts);
 }
 
-function mlpMechanism(
-  x: Matrix,
-  y: Float64Array,
-  binary: boolean,
-  params: Float64Array,
-  yCentre: number,
-  yScale: number,
-  heldOut: number,
-  opts: ResolvedMechanismOptions,
-): FittedMechanism {
-  const base = {
-    family: binary ? ('mlp-bernoulli' as const) : ('mlp' as const),
-    kind: binary ? ('binary' as const) : ('continuous' as const),
+/** A trained network as a mechanism, before its noise is estimated (no residuals, sigma 0). */
+function networkMechanism(mlp: MlpFit, x: Matrix, binary: boolean, hidden: number): FittedMechanism {
+  return {
+    family: binary ? 'mlp-bernoulli' : 'mlp',
+    kind: binary ? 'binary' : 'continuous',
     nIn: x.cols,
     nOut: 1,
-    hidden: opts.hidden,
-    params,
-    noise: binary ? ('uniform' as const) : opts.noise,
+    hidden,
+    params: mlp.params,
+    noise: binary ? 'uniform' : 'gaussian',
     sigma: 0,
     residuals: new Float64Array(0),
-    yCentre,
-    yScale,
-    heldOut,
+    yCentre: mlp.yCentre,
+    yScale: mlp.yScale,
+    heldOut: NaN,
     nFit: x.rows,
   };
-  if (binary) return base;
-  const f = predictMechanism(base, x);
+}
+
+/** The network with its held-out score and, for a continuous node, its residual noise. */
+function withNoise(net: FittedMechanism, x: Matrix, y: Float64Array, heldOut: number, opts: ResolvedMechanismOptions): FittedMechanism {
+  if (net.kind === 'binary') return { ...net, heldOut };
+  const f = predictMechanism(net, x);
   for (let i = 0; i < f.length; i++) f[i] = y[i] - f[i];
   return {
-    ...base,
+    ...net,
+    heldOut,
+    noise: opts.noise,
     sigma: residualSigma(f, 0),
-    residuals: opts.noise === 'empirical' ? residualSample(f, opts.maxResiduals) : base.residuals,
+    residuals: opts.noise === 'empirical' ? residualSample(f, opts.maxResiduals) : net.residuals,
   };
 }
 
@@ -157,36 +156,14 @@ function fitSoftmax(x: Matrix, y: Float64Array, k: number, opts: ResolvedMechani
  * of both on `valid`; returns the linear model's mean loss and the mean and standard error of
  * the MLP's per-row gain (linear loss − MLP loss).
  */
-function compareHeldOut(
-  x: Matrix,
-  y: Float64Array,
-  binary: boolean,
-  params: Float64Array,
-  yCentre: number,
-  yScale: number,
-  hidden: number,
-  valid: Int32Array,
-): { linearLoss: number; gain: number; gainSe: number } {
+function compareHeldOut(net: FittedMechanism, x: Matrix, y: Float64Array, valid: Int32Array): { linearLoss: number; gain: number; gainSe: number } {
   const p = x.cols;
   const nv = valid.length;
+  const binary = net.kind === 'binary';
+  const { params, hidden } = net;
   const xv = new Float64Array(nv * p);
   for (let r = 0; r < nv; r++) xv.set(x.data.subarray(valid[r] * p, valid[r] * p + p), r * p);
   const xm: Matrix = { rows: nv, cols: p, data: xv };
-  const net: FittedMechanism = {
-    family: binary ? 'mlp-bernoulli' : 'mlp',
-    kind: binary ? 'binary' : 'continuous',
-    nIn: p,
-    nOut: 1,
-    hidden,
-    params,
-    noise: binary ? 'uniform' : 'gaussian',
-    sigma: 0,
-    residuals: new Float64Array(0),
-    yCentre,
-    yScale,
-    heldOut: NaN,
-    nFit: 0,
-  };
   const fNet = predictMechanism(net, xm);
   const lin = hidden * p + 2 * hidden + 1;
   let linSum = 0;

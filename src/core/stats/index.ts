@@ -9,3 +9,4 @@ export { likelihoodRatioTest } from './likelihood-ratio.js';
 export { logisticRegression, softplus, type LogisticOptions, type LogisticResult } from './logistic-regression.js';
 export { softmaxRegression, type SoftmaxOptions, type SoftmaxResult } from './softmax-regression.js';
 export { mean, variance, standardDeviation, quantile } from './descriptive.js';
+export { distanceCorrelation, distanceCorrelationTest } from './distance-correlation.js';
