@@ -6,6 +6,7 @@
  * and the listed columns need not sum to one). Predictions fill an n × k matrix of arm
  * probabilities (unlisted arms NaN in the one-vs-rest form).
  */
+import { gram } from '../linalg/matmul.js';
 import type { Matrix } from '../linalg/matrix.js';
 import { logisticRegression } from '../stats/logistic-regression.js';
 import { softmaxRegression } from '../stats/softmax-regression.js';
@@ -91,23 +92,16 @@ export function fitPropensity(
   return { k, p, params, oneVsRest: null, n, hessians };
 }
 
-/** X̃ᵀX̃ for X̃ = [1, x], (p + 1)² row-major. */
+/** X̃ᵀX̃ for X̃ = [1, x], (p + 1)² row-major: n, the column sums, and linalg's XᵀX. */
 function crossProduct(x: Matrix): Float64Array {
   const p = x.cols;
   const q = p + 1;
-  const xd = x.data;
   const g = new Float64Array(q * q);
-  for (let r = 0; r < x.rows; r++) {
-    const row = r * p;
-    g[0] += 1;
-    for (let i = 0; i < p; i++) {
-      const xi = xd[row + i];
-      g[i + 1] += xi;
-      const hi = (i + 1) * q + 1;
-      for (let j = i; j < p; j++) g[hi + j] += xi * xd[row + j];
-    }
-  }
-  for (let i = 0; i < q; i++) for (let j = 0; j < i; j++) g[i * q + j] = g[j * q + i];
+  const xx = gram(x).data;
+  g[0] = x.rows;
+  for (let r = 0; r < x.rows; r++) for (let j = 0; j < p; j++) g[j + 1] += x.data[r * p + j];
+  for (let j = 0; j < p; j++) g[(j + 1) * q] = g[j + 1];
+  for (let i = 0; i < p; i++) g.set(xx.subarray(i * p, i * p + p), (i + 1) * q + 1);
   return g;
 }
 
