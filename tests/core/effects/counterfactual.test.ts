@@ -1,8 +1,12 @@
+import MLR from 'ml-regression-multivariate-linear';
 import { describe, expect, it } from 'vitest';
 import { resolveArm } from '../../../src/core/effects/arms.js';
 import { simulateArms, simulationScratch } from '../../../src/core/effects/counterfactual.js';
+import { makeFrame } from '../../../src/core/frame/frame.js';
+import { graphFromEdges } from '../../../src/core/graph/graph.js';
 import { descendants } from '../../../src/core/graph/reachability.js';
-import { fitModel } from '../../../src/core/scm/fit-model.js';
+import { Rng } from '../../../src/core/random/rng.js';
+import { fitFixedGraph, fitModel } from '../../../src/core/scm/fit-model.js';
 import { generateDataset } from '../../../src/core/synthetic/index.js';
 
 /**
@@ -44,4 +48,42 @@ describe('simulating only the rows an arm changes', () => {
       for (let a = 0; a < levels.length; a++) for (let r = 0; r < R; r++) if (tCol[r] === levels[a]) expect(skip[a * R + r]).toBe(yCol[r]);
     });
   }
+});
+
+/**
+ * Per-unit counterfactuals on the reference rows of a linear model, against an outside truth:
+ * with additive noise abducted from each row, do(t = a) moves that row's y by the fitted total
+ * effect times (a − t_r), and the fitted total effect of t → m → y plus t → y is
+ * β_ty + β_tm·β_my with the coefficients from an outside least-squares fit
+ * (ml-regression-multivariate-linear) — the linear mechanisms are ordinary least squares at ridge 0.
+ */
+describe('counterfactuals of the reference rows, linear mediator model', () => {
+  it('y_r + (β_ty + β_tm·β_my)·(a − t_r) for every row and arm', () => {
+    const rng = Rng.create(5);
+    const n = 800;
+    const x = new Float64Array(n), t = new Float64Array(n), m = new Float64Array(n), y = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      x[i] = rng.normal();
+      t[i] = 0.5 * x[i] + rng.normal();
+      m[i] = 1.2 * t[i] + rng.normal();
+      y[i] = 1 + 0.8 * t[i] + 0.6 * m[i] + 1.5 * x[i] + rng.normal();
+    }
+    const names = ['x', 't', 'm', 'y'];
+    const frame = makeFrame([x, t, m, y].map((values, k) => ({ name: names[k], kind: 'continuous' as const, values })));
+    const graph = graphFromEdges(names, [['x', 't'], ['t', 'm'], ['m', 'y'], ['t', 'y'], ['x', 'y']]);
+    const model = fitFixedGraph(frame, graph, { seed: 2, referenceRows: n, mechanism: { ridge: 0 } });
+    const olsM = new MLR(Array.from(t, (v) => [v]), Array.from(m, (v) => [v]));
+    const olsY = new MLR(Array.from(t, (v, i) => [x[i], v, m[i]]), Array.from(y, (v) => [v]));
+    const total = olsY.weights[1][0] + olsM.weights[0][0] * olsY.weights[2][0];
+    const levels = [-1, 0, 2];
+    const arms = levels.map((v) => resolveArm(model, 1, v));
+    const R = model.nReference;
+    const out = new Float64Array(arms.length * R);
+    simulateArms(model, 0, 1, 3, 0, arms, simulationScratch(model), out, arms.map(() => new Map()));
+    const tCol = model.referenceValues.subarray(R, 2 * R);
+    const yCol = model.referenceValues.subarray(3 * R, 4 * R);
+    let maxDiff = 0;
+    for (let a = 0; a < levels.length; a++) for (let r = 0; r < R; r++) maxDiff = Math.max(maxDiff, Math.abs(out[a * R + r] - (yCol[r] + total * (levels[a] - tCol[r]))));
+    expect(maxDiff).toBeLessThan(1e-8);
+  });
 });
