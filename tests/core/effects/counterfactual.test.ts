@@ -2,12 +2,10 @@ import MLR from 'ml-regression-multivariate-linear';
 import { describe, expect, it } from 'vitest';
 import { resolveArm } from '../../../src/core/effects/arms.js';
 import { simulateArms, simulationScratch } from '../../../src/core/effects/counterfactual.js';
-import { makeFrame } from '../../../src/core/frame/frame.js';
-import { graphFromEdges } from '../../../src/core/graph/graph.js';
 import { descendants } from '../../../src/core/graph/reachability.js';
-import { Rng } from '../../../src/core/random/rng.js';
 import { fitFixedGraph, fitModel } from '../../../src/core/scm/fit-model.js';
 import { generateDataset } from '../../../src/core/synthetic/index.js';
+import { MED_GRAPH, mediatorData } from '../scm/fixtures.js';
 
 /**
  * Consistency (Pearl 2009, §7.1): a unit whose treatment an arm leaves at its observed value
@@ -59,19 +57,9 @@ describe('simulating only the rows an arm changes', () => {
  */
 describe('counterfactuals of the reference rows, linear mediator model', () => {
   it('y_r + (β_ty + β_tm·β_my)·(a − t_r) for every row and arm', () => {
-    const rng = Rng.create(5);
     const n = 800;
-    const x = new Float64Array(n), t = new Float64Array(n), m = new Float64Array(n), y = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      x[i] = rng.normal();
-      t[i] = 0.5 * x[i] + rng.normal();
-      m[i] = 1.2 * t[i] + rng.normal();
-      y[i] = 1 + 0.8 * t[i] + 0.6 * m[i] + 1.5 * x[i] + rng.normal();
-    }
-    const names = ['x', 't', 'm', 'y'];
-    const frame = makeFrame([x, t, m, y].map((values, k) => ({ name: names[k], kind: 'continuous' as const, values })));
-    const graph = graphFromEdges(names, [['x', 't'], ['t', 'm'], ['m', 'y'], ['t', 'y'], ['x', 'y']]);
-    const model = fitFixedGraph(frame, graph, { seed: 2, referenceRows: n, mechanism: { ridge: 0 } });
+    const { x, t, m, y, frame } = mediatorData(n, 5);
+    const model = fitFixedGraph(frame, MED_GRAPH, { seed: 2, referenceRows: n, mechanism: { ridge: 0 } });
     const olsM = new MLR(Array.from(t, (v) => [v]), Array.from(m, (v) => [v]));
     const olsY = new MLR(Array.from(t, (v, i) => [x[i], v, m[i]]), Array.from(y, (v) => [v]));
     const total = olsY.weights[1][0] + olsM.weights[0][0] * olsY.weights[2][0];

@@ -8,30 +8,14 @@ import { MAX_POSTED_ROWS } from '../../../src/core/scm/abduct-rows.js';
 import { fitFixedGraph, fitModel } from '../../../src/core/scm/fit-model.js';
 import { InterventionError } from '../../../src/core/scm/intervention.js';
 import { normalQuantile } from '../../../src/core/stats/normal.js';
-import { mixedFrame, mixedGraph } from '../scm/fixtures.js';
+import { MED_GRAPH, mediatorData, mixedFrame, mixedGraph } from '../scm/fixtures.js';
 
 const cont = (name: string, v: Float64Array): Column => ({ name, kind: 'continuous', values: v });
 const expit = (x: number) => 1 / (1 + Math.exp(-x));
 
-/**
- * Linear Gaussian SCM with a mediator:
- *   x = e_x,  t = 0.5x + e_t,  m = 1.2t + 1.5 e_m,  y = 1 + 0.8t + 0.6m + 1.5x + e_y   (e ~ N(0, 1)).
- * Total effect of t on y per unit: 0.8 + 1.2·0.6 = 1.52.
- */
+/** Total effect of t on y per unit in the mediator SCM (fixtures.ts): 0.8 + 1.2·0.6 = 1.52. */
 const TOTAL = 0.8 + 1.2 * 0.6;
 const N_FIT = 5000;
-function mediatorData(n: number, seed: number) {
-  const rng = Rng.create(seed);
-  const x = new Float64Array(n), t = new Float64Array(n), m = new Float64Array(n), y = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    x[i] = rng.normal();
-    t[i] = 0.5 * x[i] + rng.normal();
-    m[i] = 1.2 * t[i] + 1.5 * rng.normal();
-    y[i] = 1 + 0.8 * t[i] + 0.6 * m[i] + 1.5 * x[i] + rng.normal();
-  }
-  return { x, t, m, y, frame: makeFrame([cont('x', x), cont('t', t), cont('m', m), cont('y', y)]) };
-}
-const MED_GRAPH = graphFromEdges(['x', 't', 'm', 'y'], [['x', 't'], ['t', 'm'], ['m', 'y'], ['t', 'y'], ['x', 'y']]);
 const med = mediatorData(N_FIT, 11);
 // Ridge 0: the linear mechanisms are ordinary least squares, comparable with an outside OLS.
 const medModel = fitFixedGraph(med.frame, MED_GRAPH, { seed: 3, mechanism: { ridge: 0 } });

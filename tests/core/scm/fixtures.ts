@@ -92,3 +92,24 @@ export function mixedGraph(): Graph {
     ],
   );
 }
+
+/**
+ * Linear Gaussian SCM with a mediator (e ~ N(0, 1)):
+ *   x = e_x,  t = 0.5x + e_t,  m = 1.2t + 1.5 e_m,  y = 1 + 0.8t + 0.6m + 1.5x + e_y.
+ * Total effect of t on y per unit: 0.8 + 1.2·0.6 = 1.52.
+ */
+export function mediatorData(n: number, seed: number): { x: Float64Array; t: Float64Array; m: Float64Array; y: Float64Array; frame: Frame } {
+  const rng = Rng.create(seed);
+  const x = new Float64Array(n), t = new Float64Array(n), m = new Float64Array(n), y = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    x[i] = rng.normal();
+    t[i] = 0.5 * x[i] + rng.normal();
+    m[i] = 1.2 * t[i] + 1.5 * rng.normal();
+    y[i] = 1 + 0.8 * t[i] + 0.6 * m[i] + 1.5 * x[i] + rng.normal();
+  }
+  const cols = { x, t, m, y };
+  return { ...cols, frame: makeFrame(Object.entries(cols).map(([name, values]): Column => ({ name, kind: 'continuous', values }))) };
+}
+
+/** The graph of {@link mediatorData}. */
+export const MED_GRAPH = graphFromEdges(['x', 't', 'm', 'y'], [['x', 't'], ['t', 'm'], ['m', 'y'], ['t', 'y'], ['x', 'y']]);
