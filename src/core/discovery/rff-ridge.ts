@@ -273,8 +273,11 @@ function groupedFolds(copyOf: Int32Array, n: number, V: number, rng: Rng): { per
   let t = 0;
   let f = 0;
   for (let k = 0; k < order.length; k++) {
-    // Close fold f once it has its share, leaving at least one observation per later fold.
-    while (f < V - 1 && (t >= ((f + 1) * n) / V || order.length - k <= V - 1 - f) && t > bounds[f]) bounds[++f] = t;
+    // Close fold f (never empty) once it holds its share, or when the observations left only
+    // just give each later fold one.
+    const hasShare = t >= ((f + 1) * n) / V;
+    const lastChance = order.length - k <= V - 1 - f;
+    if (f < V - 1 && t > bounds[f] && (hasShare || lastChance)) bounds[++f] = t;
     for (const r of groups[order[k]]) perm[t++] = r;
   }
   while (f < V) bounds[++f] = t;
