@@ -149,14 +149,39 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
         const o1 = o0 + w;
         const o2 = o1 + w;
         const o3 = o2 + w;
-        for (let i = 0; i < w; i++) {
+        // Two rows of G per sweep: each feature loaded serves both (the sums per entry are
+        // unchanged, so G is identical to the bit).
+        let i = 0;
+        for (; i + 1 < w; i += 2) {
+          const v0 = feat[o0 + i];
+          const v1 = feat[o1 + i];
+          const v2 = feat[o2 + i];
+          const v3 = feat[o3 + i];
+          const u0 = feat[o0 + i + 1];
+          const u1 = feat[o1 + i + 1];
+          const u2 = feat[o2 + i + 1];
+          const u3 = feat[o3 + i + 1];
+          S[i] += v0 + v1 + v2 + v3;
+          S[i + 1] += u0 + u1 + u2 + u3;
+          const gi = i * w;
+          const gu = gi + w;
+          G[gi + i] += v0 * v0 + v1 * v1 + v2 * v2 + v3 * v3;
+          for (let j = i + 1; j < w; j++) {
+            const f0 = feat[o0 + j];
+            const f1 = feat[o1 + j];
+            const f2 = feat[o2 + j];
+            const f3 = feat[o3 + j];
+            G[gi + j] += v0 * f0 + v1 * f1 + v2 * f2 + v3 * f3;
+            G[gu + j] += u0 * f0 + u1 * f1 + u2 * f2 + u3 * f3;
+          }
+        }
+        for (; i < w; i++) {
           const v0 = feat[o0 + i];
           const v1 = feat[o1 + i];
           const v2 = feat[o2 + i];
           const v3 = feat[o3 + i];
           S[i] += v0 + v1 + v2 + v3;
-          const gi = i * w;
-          for (let j = i; j < w; j++) G[gi + j] += v0 * feat[o0 + j] + v1 * feat[o1 + j] + v2 * feat[o2 + j] + v3 * feat[o3 + j];
+          G[i * w + i] += v0 * v0 + v1 * v1 + v2 * v2 + v3 * v3;
         }
       }
       for (; r < end; r++) {
