@@ -32,6 +32,11 @@ export const MODEL_ERRORS = {
     title: 'Too few variables',
     template: 'A model needs at least 2 variables; got {count}.',
   },
+  ERR_MODEL_LEARNER_COLUMNS: {
+    status: 400,
+    title: 'Learner cannot take these columns',
+    template: '{reason}.',
+  },
   ERR_MODEL_KNOWLEDGE: {
     status: 400,
     title: 'Contradictory knowledge',

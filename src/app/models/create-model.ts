@@ -6,6 +6,7 @@
  * not answer, the transaction rolls back and the caller gets 503, with nothing half-made.
  */
 import { randomUUID } from 'node:crypto';
+import { directLingamRefusal } from '../../core/discovery/direct-lingam.js';
 import { compileKnowledge, KnowledgeError } from '../../core/discovery/knowledge.js';
 import { graphFromEdges } from '../../core/graph/graph.js';
 import { topologicalOrder } from '../../core/graph/index.js';
@@ -38,7 +39,8 @@ export type ModelSpecInput = Partial<Omit<ModelSpec, 'datasetId' | 'name' | 'mec
 export async function resolveSpec(deps: ModelsDeps, workspaceId: string, input: ModelSpecInput): Promise<ModelSpec> {
   const ds = await deps.datasets.find(workspaceId, input.datasetId);
   if (!ds) throw dataError('ERR_DATA_UNKNOWN_DATASET', { id: input.datasetId });
-  const columns = (await deps.datasets.columns(ds.id)).map((c) => c.name);
+  const schema = await deps.datasets.columns(ds.id);
+  const columns = schema.map((c) => c.name);
   const known = new Set(columns);
   const of = `dataset ${ds.id}`;
   const check = (where: string, v: string, pool: ReadonlySet<string>, poolName: string, list: readonly string[]) => {
@@ -71,6 +73,10 @@ export async function resolveSpec(deps: ModelsDeps, workspaceId: string, input: 
     if (!topologicalOrder(g)) {
       throw modelError('ERR_MODEL_FIXED_GRAPH_CYCLE', { cycle: input.fixedGraph.edges.map(([a, b]) => `${a}→${b}`).join(', ') });
     }
+  }
+  if (input.learner === 'direct-lingam' && !input.fixedGraph) {
+    const refusal = directLingamRefusal(schema.filter((c) => chosen.has(c.name)));
+    if (refusal) throw modelError('ERR_MODEL_LEARNER_COLUMNS', { reason: refusal });
   }
   if (ds.rowCount < MIN_FIT_ROWS) throw modelError('ERR_MODEL_TOO_FEW_ROWS', { id: ds.id, rows: ds.rowCount, min: MIN_FIT_ROWS });
   return {

@@ -1,4 +1,4 @@
-import type { Frame } from '../frame/frame.js';
+import type { ColumnKind, Frame } from '../frame/frame.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { Matrix } from '../linalg/matrix.js';
 import type { Rng } from '../random/rng.js';
@@ -55,6 +55,19 @@ const GAMMA = 0.37457;
 const H_GAUSS = (1 + Math.log(2 * Math.PI)) / 2;
 const LOG2 = Math.LN2;
 
+/**
+ * Why DirectLiNGAM cannot learn from these columns, or null when it can. Its model is linear in
+ * numeric values: the codes of a categorical column with three or more levels have no order, so
+ * renumbering the levels would change the graph. A binary column is fine (swapping its codes is
+ * an affine map, which the linear model absorbs).
+ */
+export function directLingamRefusal(columns: ReadonlyArray<{ readonly name: string; readonly kind: ColumnKind; readonly levels?: readonly string[] }>): string | null {
+  const bad = columns.filter((c) => c.kind === 'categorical' && (c.levels?.length ?? 3) > 2);
+  if (bad.length === 0) return null;
+  const list = bad.map((c) => `"${c.name}"${c.levels ? ` (${c.levels.length} levels)` : ''}`).join(', ');
+  return `direct-lingam models numeric variables, and the level codes of the categorical column${bad.length > 1 ? 's' : ''} ${list} have no order; choose learner "pc" or "auto", or leave ${bad.length > 1 ? 'them' : 'it'} out of the model's variables`;
+}
+
 export const directLingam: Learner<DirectLingamOptions> = {
   name: 'direct-lingam',
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<DirectLingamOptions>, _rng: Rng): LearnResult {
@@ -70,10 +83,10 @@ export const directLingam: Learner<DirectLingamOptions> = {
     }
     if (n < 3) throw new RangeError(`direct-lingam: need at least 3 rows, got ${n}`);
     const notes: string[] = [];
-    const nonContinuous = frame.columns.filter((c) => c.kind !== 'continuous').map((c) => c.name);
-    if (nonContinuous.length > 0) {
-      notes.push(`direct-lingam assumes continuous variables; ${nonContinuous.join(', ')} treated as numeric codes`);
-    }
+    const refusal = directLingamRefusal(frame.columns);
+    if (refusal) throw new RangeError(refusal);
+    const binary = frame.columns.filter((c) => c.kind === 'binary').map((c) => c.name);
+    if (binary.length > 0) notes.push(`direct-lingam assumes continuous variables; binary ${binary.join(', ')} taken as 0/1 values`);
     // Centred data (n×d, row-major) for the regressions; standardised column copies of up to
     // `orderRows` evenly spaced rows for the order search.
     const m = Math.min(n, Math.floor(orderRows));

@@ -109,4 +109,15 @@ describe('DirectLiNGAM (Shimizu et al. 2011) with the pairwise measure of Hyvär
     expect(Array.from(a.graph.adj)).toEqual(Array.from(b.graph.adj));
     expect(Array.from(a.weights!)).toEqual(Array.from(b.weights!));
   });
+
+  it('refuses a categorical column of three or more levels (its codes have no order), takes a binary one', () => {
+    const f = simulate(B6, 300, laplace, 15);
+    const names = f.columns.map((c) => c.name);
+    const k = compileKnowledge(names, {});
+    const codes = Float64Array.from({ length: 300 }, (_, r) => r % 3);
+    const withCat = { ...f, columns: f.columns.map((c, j) => (j === 5 ? { ...c, kind: 'categorical' as const, levels: ['a', 'b', 'c'], values: codes } : c)) };
+    expect(() => directLingam.learn(withCat, k, {}, Rng.create(1))).toThrow(/level codes of the categorical column "x5" \(3 levels\) have no order/);
+    const withBin = { ...f, columns: f.columns.map((c, j) => (j === 5 ? { ...c, kind: 'binary' as const, levels: ['no', 'yes'], values: Float64Array.from(codes, (v) => (v === 0 ? 0 : 1)) } : c)) };
+    expect(directLingam.learn(withBin, k, {}, Rng.create(1)).notes.join(' ')).toMatch(/binary x5 taken as 0\/1 values/);
+  });
 });
