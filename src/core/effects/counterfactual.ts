@@ -25,6 +25,7 @@ import type { CompiledModel } from '../scm/compiled-model.js';
 import { KIND_CATEGORICAL, KIND_CONTINUOUS, MECH_PARENT_COUNT, MECH_PARENT_OFFSET, MECH_STRIDE } from '../scm/compiled-model.js';
 import { conditionHolds, InterventionError } from '../scm/intervention.js';
 import { applyNoise, kernelWidths, mechanismOutput } from '../scm/kernel.js';
+import { fixedPreactivation, isAdditiveMlp, mlpOutputRows, PARENT_CONSTANT, PARENT_FIXED, PARENT_VARYING } from '../scm/mlp-row-kernel.js';
 import { ancestorMask, descendantMask } from '../scm/model-access.js';
 import type { ResolvedArm } from './arms.js';
 import { ARM_OBSERVE, ARM_POLICY, ARM_SCALE, ARM_SET, ARM_SHIFT } from './arms.js';
@@ -38,7 +39,21 @@ export interface SimulationScratch {
   readonly sub: Float64Array;
   readonly rows: Int32Array;
   readonly noise: Float64Array;
+  /**
+   * MLP pre-activations from the parents that keep their observed values, per (mechanism,
+   * parent roles): the same in every arm and graph (scm/mlp-row-kernel.ts). At most
+   * MAX_FIXED_PARTS are kept.
+   */
+  readonly fixed: Map<string, Float64Array>;
+  /** Per parent of one mechanism: its role and, for a constant one, its value; and the constant part per hidden unit. */
+  readonly role: Uint8Array;
+  readonly constants: Float64Array;
+  readonly constPart: Float64Array;
+  readonly inputIndex: Int32Array;
 }
+
+/** Most fixed pre-activation tables kept in a scratch (each R × (h + 1) values). */
+const MAX_FIXED_PARTS = 32;
 
 /** Allocate scratch for a model (once per query, or kept in the query cache). */
 export function simulationScratch(model: CompiledModel): SimulationScratch {
@@ -51,6 +66,11 @@ export function simulationScratch(model: CompiledModel): SimulationScratch {
     sub: new Float64Array(model.p * R),
     rows: new Int32Array(R),
     noise: new Float64Array(R),
+    fixed: new Map(),
+    role: new Uint8Array(model.p),
+    constants: new Float64Array(model.p),
+    constPart: new Float64Array(Math.max(1, hidden)),
+    inputIndex: new Int32Array(Math.max(1, hidden)),
   };
 }
 
@@ -244,6 +264,8 @@ function simulateChangedRows(
   if (n > 0 && yAffected) {
     // Columns are gathered on first use: a mechanism's inputs only, and none after a memo hit.
     const have = new Uint8Array(p);
+    const isAffected = new Uint8Array(p);
+    for (let k = 0; k < affected.length; k++) isAffected[affected[k]] = 1;
     const gatherInputs = (m: number): void => {
       const po = model.mechTable[m * MECH_STRIDE + MECH_PARENT_OFFSET];
       const pc = model.mechTable[m * MECH_STRIDE + MECH_PARENT_COUNT];
@@ -255,6 +277,46 @@ function simulateChangedRows(
         const dst = v * n;
         for (let i = 0; i < n; i++) sub[dst + i] = work[src + rows[i]];
       }
+    };
+    // The treatment's value when it is one value on every changed row (a 'set' arm): then its
+    // part of an MLP's pre-activation is one number per hidden unit.
+    const tFirst = work[tOff + rows[0]];
+    let tConstant = true;
+    for (let i = 1; i < n && tConstant; i++) if (work[tOff + rows[i]] !== tFirst) tConstant = false;
+    const { role, constants } = scratch;
+    /** f(parents) of mechanism m on the changed rows into `mean`. */
+    const evaluate = (m: number): void => {
+      if (!isAdditiveMlp(model, m)) {
+        gatherInputs(m);
+        mechanismOutput(model, m, sub, n, hidden, mean);
+        return;
+      }
+      const po = model.mechTable[m * MECH_STRIDE + MECH_PARENT_OFFSET];
+      const pc = model.mechTable[m * MECH_STRIDE + MECH_PARENT_COUNT];
+      let key = `${m}:`;
+      for (let q = 0; q < pc; q++) {
+        const v = model.mechParents[po + q];
+        if (v === t && tConstant) {
+          role[q] = PARENT_CONSTANT;
+          constants[q] = tFirst;
+        } else if (v === t || isAffected[v] === 1) {
+          role[q] = PARENT_VARYING;
+          if (have[v] === 0) {
+            have[v] = 1;
+            for (let i = 0; i < n; i++) sub[v * n + i] = work[v * R + rows[i]];
+          }
+        } else {
+          role[q] = PARENT_FIXED;
+        }
+        key += role[q];
+      }
+      let fixed = scratch.fixed.get(key);
+      if (fixed === undefined) {
+        if (scratch.fixed.size >= MAX_FIXED_PARTS) scratch.fixed.clear();
+        fixed = fixedPreactivation(model, m, role);
+        scratch.fixed.set(key, fixed);
+      }
+      mlpOutputRows(model, m, role, constants, fixed, rows, n, sub, scratch.constPart, scratch.inputIndex, hidden, mean);
     };
     const gatherNoise = (m: number): void => {
       const off = m * R;
@@ -271,14 +333,12 @@ function simulateChangedRows(
         continue;
       }
       const m = model.mechanismOf[g * p + j];
-      gatherInputs(m);
-      mechanismOutput(model, m, sub, n, hidden, mean);
+      evaluate(m);
       gatherNoise(m);
       applyNoise(model, j, mean, noise, 0, n, sub, j * n);
       if (armMemo) armMemo.set(sig[j], sub.slice(j * n, (j + 1) * n));
     }
-    gatherInputs(yMech);
-    mechanismOutput(model, yMech, sub, n, hidden, mean);
+    evaluate(yMech);
     gatherNoise(yMech);
     for (let i = 0; i < n; i++) out[o + rows[i]] = mean[i] + noise[i];
   }
