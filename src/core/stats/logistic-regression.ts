@@ -20,6 +20,8 @@ export interface LogisticOptions {
    * Hessian and this matrix is factored instead. Ignored without `start`.
    */
   readonly startHessian?: Float64Array;
+  /** designColumns(x), when the caller already has it (several fits on one design); computed otherwise. */
+  readonly columns?: Float64Array;
 }
 
 /** Fitted logistic model; `logLik` is the unpenalised log-likelihood at the fitted coefficients. */
@@ -69,7 +71,6 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
   const maxIter = opts.maxIter ?? 50;
   const tol = opts.tol ?? 1e-10;
   const q = p + 1; // parameter 0 is the intercept
-  const xd = x.data;
   const theta = new Float64Array(q);
   const trial = new Float64Array(q);
   const grad = new Float64Array(q);
@@ -92,7 +93,8 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
     theta[0] = Math.log(ybar / (1 - ybar));
   }
 
-  const buffers = passBuffers(xd, n, p);
+  if (opts.columns && opts.columns.length !== n * p) throw new RangeError(`logisticRegression: columns has length ${opts.columns.length}, expected ${n * p}`);
+  const buffers = passBuffers(opts.columns ?? designColumns(x), n, p);
   const pass = (t: Float64Array, withHessian: boolean): number => logisticPass(buffers, y, n, p, ridge, t, grad, withHessian ? hess : null);
 
   let factor: Matrix | null = null;
@@ -166,12 +168,20 @@ interface PassBuffers {
   readonly res: Float64Array;
   readonly w: Float64Array;
   readonly wx: Float64Array;
+  /** Indices of the non-zero coefficients of the current point. */
+  readonly nz: Int32Array;
 }
 
-function passBuffers(xd: Float64Array, n: number, p: number): PassBuffers {
+function passBuffers(cols: Float64Array, n: number, p: number): PassBuffers {
+  return { cols, z: new Float64Array(n), res: new Float64Array(n), w: new Float64Array(n), wx: new Float64Array(n), nz: new Int32Array(p) };
+}
+
+/** The design by columns (column j at [j·n, (j + 1)·n)), the layout of the fit's passes: for `columns` when several fits share one x. */
+export function designColumns(x: Matrix): Float64Array {
+  const { rows: n, cols: p, data: xd } = x;
   const cols = new Float64Array(n * p);
   for (let r = 0; r < n; r++) for (let j = 0; j < p; j++) cols[j * n + r] = xd[r * p + j];
-  return { cols, z: new Float64Array(n), res: new Float64Array(n), w: new Float64Array(n), wx: new Float64Array(n) };
+  return cols;
 }
 
 /**
@@ -182,13 +192,37 @@ function passBuffers(xd: Float64Array, n: number, p: number): PassBuffers {
  */
 function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, ridge: number, t: Float64Array, grad: Float64Array, hess: Float64Array | null): number {
   const q = p + 1;
-  const { cols, z, res, w, wx } = b;
+  const { cols, z, res, w, wx, nz } = b;
+  // z = t0 + Σ_j t_j·x_j over the non-zero t_j in column order, up to four columns per sweep
+  // (each z[r] gets the same additions in the same order as one column at a time).
   z.fill(t[0]);
-  for (let j = 0; j < p; j++) {
-    const tj = t[j + 1];
-    if (tj === 0) continue;
-    const o = j * n;
-    for (let r = 0; r < n; r++) z[r] += tj * cols[o + r];
+  let m = 0;
+  for (let j = 0; j < p; j++) if (t[j + 1] !== 0) nz[m++] = j;
+  for (let k = 0; k < m; k += 4) {
+    const left = m - k;
+    const o0 = nz[k] * n;
+    const t0 = t[nz[k] + 1];
+    if (left >= 4) {
+      const o1 = nz[k + 1] * n;
+      const o2 = nz[k + 2] * n;
+      const o3 = nz[k + 3] * n;
+      const t1 = t[nz[k + 1] + 1];
+      const t2 = t[nz[k + 2] + 1];
+      const t3 = t[nz[k + 3] + 1];
+      for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r] + t2 * cols[o2 + r] + t3 * cols[o3 + r];
+    } else if (left === 3) {
+      const o1 = nz[k + 1] * n;
+      const o2 = nz[k + 2] * n;
+      const t1 = t[nz[k + 1] + 1];
+      const t2 = t[nz[k + 2] + 1];
+      for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r] + t2 * cols[o2 + r];
+    } else if (left === 2) {
+      const o1 = nz[k + 1] * n;
+      const t1 = t[nz[k + 1] + 1];
+      for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r];
+    } else {
+      for (let r = 0; r < n; r++) z[r] += t0 * cols[o0 + r];
+    }
   }
   let ll = 0;
   let g0 = 0;
