@@ -249,9 +249,7 @@ function simulateChangedRows(
   const ref = model.referenceValues;
   const { work, sub, rows, noise, mean, hidden } = scratch;
   const tOff = t * R;
-  let n = 0;
-  for (let r = 0; r < R; r++) if (work[tOff + r] !== ref[tOff + r]) rows[n++] = r;
-  if (n === R) return false;
+  // A memoised outcome column (from an earlier graph, simulated either way) needs no rows.
   const yMech = model.mechanismOf[g * p + y];
   const yKey = yAffected ? `y:${sig[y]}` : `y:${yMech}`;
   const yHit = armMemo ? armMemo.get(yKey) : undefined;
@@ -259,6 +257,9 @@ function simulateChangedRows(
     out.set(yHit, o);
     return true;
   }
+  let n = 0;
+  for (let r = 0; r < R; r++) if (work[tOff + r] !== ref[tOff + r]) rows[n++] = r;
+  if (n === R) return false;
   // Rows the arm leaves as they are: the observed outcome.
   out.set(ref.subarray(y * R, (y + 1) * R), o);
   if (n > 0 && yAffected) {
@@ -294,6 +295,7 @@ function simulateChangedRows(
       const po = model.mechTable[m * MECH_STRIDE + MECH_PARENT_OFFSET];
       const pc = model.mechTable[m * MECH_STRIDE + MECH_PARENT_COUNT];
       let key = `${m}:`;
+      let anyFixed = false;
       for (let q = 0; q < pc; q++) {
         const v = model.mechParents[po + q];
         if (v === t && tConstant) {
@@ -307,11 +309,12 @@ function simulateChangedRows(
           }
         } else {
           role[q] = PARENT_FIXED;
+          anyFixed = true;
         }
         key += role[q];
       }
-      let fixed = scratch.fixed.get(key);
-      if (fixed === undefined) {
+      let fixed = scratch.fixed.get(key) ?? null;
+      if (fixed === null && anyFixed) {
         if (scratch.fixed.size >= MAX_FIXED_PARTS) scratch.fixed.clear();
         fixed = fixedPreactivation(model, m, role);
         scratch.fixed.set(key, fixed);
@@ -334,13 +337,19 @@ function simulateChangedRows(
       }
       const m = model.mechanismOf[g * p + j];
       evaluate(m);
-      gatherNoise(m);
-      applyNoise(model, j, mean, noise, 0, n, sub, j * n);
+      if (model.kinds[j] === KIND_CONTINUOUS) {
+        const off = m * R;
+        const d = j * n;
+        for (let i = 0; i < n; i++) sub[d + i] = mean[i] + model.referenceNoise[off + rows[i]];
+      } else {
+        gatherNoise(m);
+        applyNoise(model, j, mean, noise, 0, n, sub, j * n);
+      }
       if (armMemo) armMemo.set(sig[j], sub.slice(j * n, (j + 1) * n));
     }
     evaluate(yMech);
-    gatherNoise(yMech);
-    for (let i = 0; i < n; i++) out[o + rows[i]] = mean[i] + noise[i];
+    const yOff = yMech * R;
+    for (let i = 0; i < n; i++) out[o + rows[i]] = mean[i] + model.referenceNoise[yOff + rows[i]];
   }
   if (armMemo) armMemo.set(yKey, out.slice(o, o + R));
   return true;

@@ -102,7 +102,8 @@ export function fixedPreactivation(model: CompiledModel, m: number, role: Uint8A
 /**
  * f(parents) of MLP mechanism m (isAdditiveMlp) for n rows into out[0..n): the conditional mean
  * (mlp) or P(x = 1) (mlp-bernoulli), as mechanismOutput gives them. Row i is reference row
- * rows[i]: its FIXED part is fixed[u·R + rows[i]] (fixedPreactivation with the same roles);
+ * rows[i]: its FIXED part is fixed[u·R + rows[i]] (fixedPreactivation with the same roles;
+ * null when no parent is FIXED);
  * a CONSTANT parent's value is `constants[q]`; a VARYING parent v's values are values[v·n + i].
  * Scratch: `cst` at least h + 1 values, `inputOf` nIn, `pre` at least (nIn + 1)·n.
  */
@@ -111,7 +112,7 @@ export function mlpOutputRows(
   m: number,
   role: Uint8Array,
   constants: Float64Array,
-  fixed: Float64Array,
+  fixed: Float64Array | null,
   rows: Int32Array,
   n: number,
   values: Float64Array,
@@ -135,12 +136,17 @@ export function mlpOutputRows(
   const bern = t[row + MECH_FAMILY] === FAMILY_MLP_BERNOULLI;
   const yC = model.mechScalars[m * SCALAR_STRIDE + SCALAR_Y_CENTRE];
   const yS = model.mechScalars[m * SCALAR_STRIDE + SCALAR_Y_SCALE];
-  // The CONSTANT parents' part per hidden unit (cst[u]) and of the skip part (cst[h]); the
-  // VARYING parents' encoded inputs as columns z_0.. (pre[c·n + i]) with their input index.
-  cst.fill(0, 0, h + 1);
+  // The CONSTANT parents' part per hidden unit (cst[u]) and of the skip part (cst[h]) — with the
+  // biases when no parent is FIXED (there is no fixed part then) —; the VARYING parents'
+  // encoded inputs as columns z_0.. (pre[c·n + i]) with their input index.
+  if (fixed === null) {
+    for (let u = 0; u < h; u++) cst[u] = P[po + h * nIn + u];
+    cst[h] = P[lin];
+  } else {
+    cst.fill(0, 0, h + 1);
+  }
   let wi = 0;
   let nV = 0;
-  let anyFixed = false;
   for (let q = 0; q < pc; q++) {
     const v = model.mechParents[pa + q];
     const cat = model.kinds[v] === KIND_CATEGORICAL;
@@ -173,16 +179,14 @@ export function mlpOutputRows(
         inputOf[nV] = wi;
       }
       nV += width;
-    } else {
-      anyFixed = true;
     }
     wi += width;
   }
-  if (!anyFixed && nV === 0) {
+  if (fixed === null && nV === 0) {
     // Constant parents only: one value for every row.
     let acc = P[b2];
-    for (let u = 0; u < h; u++) acc += P[w2 + u] * tanhApprox(P[po + h * nIn + u] + cst[u]);
-    const l = P[lin] + cst[h];
+    for (let u = 0; u < h; u++) acc += P[w2 + u] * tanhApprox(cst[u]);
+    const l = cst[h];
     out.fill(bern ? sigmoid(l + acc) : l + (yC + yS * acc), 0, n);
     return;
   }
@@ -194,7 +198,21 @@ export function mlpOutputRows(
     const c = cst[u];
     const wu = P[w2 + u];
     const wr = po + u * nIn;
-    if (nV === 0) {
+    if (fixed === null) {
+      // Biases and constant parts in c; varying inputs only.
+      if (nV === 1) {
+        const w0 = P[wr + inputOf[0]];
+        for (let i = 0; i < n; i++) out[i] += wu * tanhApprox(c + w0 * pre[i]);
+      } else if (nV === 2) {
+        const w0 = P[wr + inputOf[0]];
+        const w1 = P[wr + inputOf[1]];
+        for (let i = 0; i < n; i++) out[i] += wu * tanhApprox(c + w0 * pre[i] + w1 * pre[n + i]);
+      } else {
+        const a = pre.subarray(nV * n, (nV + 1) * n);
+        sumInputs(a, null, 0, c, rows, n, pre, nV, P, wr, inputOf);
+        for (let i = 0; i < n; i++) out[i] += wu * tanhApprox(a[i]);
+      }
+    } else if (nV === 0) {
       for (let i = 0; i < n; i++) out[i] += wu * tanhApprox(fixed[f + rows[i]] + c);
     } else if (nV === 1) {
       const w0 = P[wr + inputOf[0]];
@@ -216,10 +234,10 @@ export function mlpOutputRows(
   else for (let i = 0; i < n; i++) out[i] = a[i] + (yC + yS * out[i]);
 }
 
-/** a[i] = fixed[f + rows[i]] + c + Σ_k P[wr + inputOf[k]]·z_k[i] (z_k = pre[k·n ..]), in that order. */
+/** a[i] = fixed[f + rows[i]] + c + Σ_k P[wr + inputOf[k]]·z_k[i] (z_k = pre[k·n ..]), in that order; without the first term when `fixed` is null. */
 function sumInputs(
   a: Float64Array,
-  fixed: Float64Array,
+  fixed: Float64Array | null,
   f: number,
   c: number,
   rows: Int32Array,
@@ -230,7 +248,8 @@ function sumInputs(
   wr: number,
   inputOf: Int32Array,
 ): void {
-  for (let i = 0; i < n; i++) a[i] = fixed[f + rows[i]] + c;
+  if (fixed === null) a.fill(c, 0, n);
+  else for (let i = 0; i < n; i++) a[i] = fixed[f + rows[i]] + c;
   for (let k = 0; k < nV; k++) {
     const w = P[wr + inputOf[k]];
     const o = k * n;

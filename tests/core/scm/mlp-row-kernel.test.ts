@@ -56,7 +56,8 @@ describe('MLP kernel with fixed, constant and varying parents', () => {
           }
         }
         mechanismOutput(model, m, full, n, scratch, want);
-        const fixed = fixedPreactivation(model, m, role);
+        // As the simulation does: no fixed part when no parent is fixed (the biases go with the constants).
+        const fixed = role.includes(PARENT_FIXED) ? fixedPreactivation(model, m, role) : null;
         mlpOutputRows(model, m, role, constants, fixed, rows, n, varying, new Float64Array(model.mechTable[t + MECH_HIDDEN] + 1), new Int32Array(model.mechTable[t + MECH_N_IN]), scratch, got);
         for (let i = 0; i < n; i++) expect(Math.abs(got[i] - want[i])).toBeLessThanOrEqual(1e-12 * (1 + Math.abs(want[i])));
         checked++;
