@@ -136,15 +136,15 @@ export function contrast(
     let seG = causal ? mcSe : 0;
     if (check && check.scores && causal) {
       const sc = check.scores;
-      let subMask: Uint8Array | undefined;
-      if (mask !== null && sc.identityRows) subMask = mask;
-      else if (mask !== null && !byScores.has(sc)) {
-        subMask = new Uint8Array(sc.n);
-        for (let k = 0; k < sc.n; k++) subMask[k] = mask[sc.rows[k]];
-      }
       let c = byScores.get(sc);
       if (c === undefined) {
-        c = scoreContrast(sc, i, j, level, sc.weights, subMask);
+        let subMask: Uint8Array | undefined;
+        if (mask !== null && !sc.identityRows) {
+          subMask = new Uint8Array(sc.n);
+          for (let k = 0; k < sc.n; k++) subMask[k] = mask[sc.rows[k]];
+        }
+        // With scores on every reference row in order, the segment's rows are the scored units to average.
+        c = mask !== null && sc.identityRows ? scoreContrast(sc, i, j, level, sc.weights, mask, idx) : scoreContrast(sc, i, j, level, sc.weights, subMask);
         byScores.set(sc, c);
       }
       let disagrees = false;

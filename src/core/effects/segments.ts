@@ -11,6 +11,7 @@ import type { PolicyCondition, ResolvedCondition } from '../scm/intervention.js'
 import { valueCode, variableIndexOf } from '../scm/intervention.js';
 import { descendantMask } from '../scm/model-access.js';
 import { QueryRefusalError } from '../scm/query-refusal.js';
+import { argsort } from '../stats/argsort.js';
 
 /** A segment: every condition must hold (an empty list selects every row). */
 export interface Segment {
@@ -181,9 +182,8 @@ export function expandSegments(model: CompiledModel, treatment: number, by: Segm
   if (model.kinds[v] !== KIND_CONTINUOUS) throw new QueryRefusalError(`quantile bins need a numeric variable; "${by.variable}" is discrete: use cells`);
   if (!(Number.isInteger(by.bins) && by.bins >= 2)) throw new QueryRefusalError(`bins must be an integer ≥ 2, got ${by.bins}`);
   const R = model.nReference;
-  const idx = Array.from({ length: R }, (_, r) => r);
   const vals = model.referenceValues.subarray(v * R, (v + 1) * R);
-  idx.sort((a, b) => vals[a] - vals[b]);
+  const idx = argsort(vals);
   let total = 0;
   for (let r = 0; r < R; r++) total += model.referenceWeights[r];
   const cuts: number[] = [];

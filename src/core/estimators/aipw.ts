@@ -248,15 +248,20 @@ export function scoreContrast(
   level = 0.9,
   weights?: Float64Array,
   mask?: Uint8Array,
+  /** The units of `mask` listed in increasing order, when the caller has them (a small segment need not be scanned). */
+  units?: Int32Array,
 ): { estimate: number; se: number; lower: number; upper: number; meanI: number; meanJ: number; seI: number; seJ: number; n: number } {
   const n = s.n;
   const sc = s.scores;
+  const listed = units !== undefined;
+  const m = listed ? units.length : n;
   let sw = 0;
   let mi = 0;
   let mj = 0;
   let cnt = 0;
-  for (let r = 0; r < n; r++) {
-    if (mask && mask[r] !== 1) continue;
+  for (let k = 0; k < m; k++) {
+    const r = listed ? units[k] : k;
+    if (!listed && mask && mask[r] !== 1) continue;
     const w = weights ? weights[r] : 1;
     sw += w;
     mi += w * sc[i * n + r];
@@ -269,8 +274,9 @@ export function scoreContrast(
   let vi = 0;
   let vj = 0;
   let vd = 0;
-  for (let r = 0; r < n; r++) {
-    if (mask && mask[r] !== 1) continue;
+  for (let k = 0; k < m; k++) {
+    const r = listed ? units[k] : k;
+    if (!listed && mask && mask[r] !== 1) continue;
     const w = weights ? weights[r] : 1;
     const di = sc[i * n + r] - mi;
     const dj = sc[j * n + r] - mj;
