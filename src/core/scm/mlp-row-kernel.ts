@@ -74,12 +74,13 @@ export function fixedPreactivation(model: CompiledModel, m: number, role: Uint8A
     const cat = model.kinds[v] === KIND_CATEGORICAL;
     if (role[q] === PARENT_FIXED) {
       if (cat) {
-        for (let r = 0; r < R; r++) {
-          const c = ref[col + r];
-          if (c > 0) {
-            const k = wi + c - 1;
-            for (let u = 0; u < h; u++) out[u * R + r] += P[po + u * nIn + k];
-            out[h * R + r] += P[lin + 1 + k];
+        for (let u = 0; u <= h; u++) {
+          // Weight of level c ≥ 1 at wr + c (indicator inputs wi .. wi + k − 2).
+          const wr = (u < h ? po + u * nIn : lin + 1) + wi - 1;
+          const o = u * R;
+          for (let r = 0; r < R; r++) {
+            const c = ref[col + r];
+            if (c > 0) out[o + r] += P[wr + c];
           }
         }
       } else {

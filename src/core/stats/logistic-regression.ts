@@ -227,6 +227,7 @@ function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, rid
   let ll = 0;
   let g0 = 0;
   let h0 = 0;
+  const withW = hess !== null;
   for (let r = 0; r < n; r++) {
     const zr = z[r];
     // One exp serves both the log-likelihood and the mean: e = exp(−|z|) ∈ (0, 1]. log(1 + e)
@@ -240,9 +241,12 @@ function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, rid
     const rr = yr - mu;
     res[r] = rr;
     g0 += rr;
-    const wr = mu * (1 - mu);
-    w[r] = wr;
-    h0 += wr;
+    // The weights only when this pass computes the Hessian.
+    if (withW) {
+      const wr = mu * (1 - mu);
+      w[r] = wr;
+      h0 += wr;
+    }
   }
   grad[0] = g0;
   for (let j = 0; j < p; j += 4) dots(res, cols, n, j, Math.min(4, p - j), grad, j + 1);
