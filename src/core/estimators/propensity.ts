@@ -56,7 +56,7 @@ export function fitPropensity(
     const listed = k === 2 ? [1] : [...new Set(arms)];
     let gram: Float64Array | null = null;
     const y = new Float64Array(n);
-    const columns = designColumns(x);
+    const design = designColumns(x);
     for (const c of listed) {
       let ones = 0;
       for (let r = 0; r < n; r++) ones += y[r] = codes[r] === c ? 1 : 0;
@@ -76,7 +76,7 @@ export function fitPropensity(
         for (let i = 0; i < q * q; i++) startHessian[i] = v * gram[i];
         for (let j = 1; j < q; j++) startHessian[j * q + j] += PROPENSITY_RIDGE;
       }
-      const fit = logisticRegression(x, y, { ridge: PROPENSITY_RIDGE, ...NEWTON, start, startHessian, columns });
+      const fit = logisticRegression(x, y, { ridge: PROPENSITY_RIDGE, ...NEWTON, start, startHessian, design });
       params[c * q] = fit.intercept;
       for (let j = 0; j < p; j++) params[c * q + 1 + j] = fit.coef[j];
       hessians[c] = fit.hessian;

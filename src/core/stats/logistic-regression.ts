@@ -21,7 +21,7 @@ export interface LogisticOptions {
    */
   readonly startHessian?: Float64Array;
   /** designColumns(x), when the caller already has it (several fits on one design); computed otherwise. */
-  readonly columns?: Float64Array;
+  readonly design?: ColumnDesign;
 }
 
 /** Fitted logistic model; `logLik` is the unpenalised log-likelihood at the fitted coefficients. */
@@ -93,8 +93,8 @@ export function logisticRegression(x: Matrix, y: Float64Array, opts: LogisticOpt
     theta[0] = Math.log(ybar / (1 - ybar));
   }
 
-  if (opts.columns && opts.columns.length !== n * p) throw new RangeError(`logisticRegression: columns has length ${opts.columns.length}, expected ${n * p}`);
-  const buffers = passBuffers(opts.columns ?? designColumns(x), n, p);
+  if (opts.design && (opts.design.cols.length !== n * p || opts.design.ones.length !== p)) throw new RangeError(`logisticRegression: design does not match the ${n} × ${p} x`);
+  const buffers = passBuffers(opts.design ?? designColumns(x), n);
   const pass = (t: Float64Array, withHessian: boolean): number => logisticPass(buffers, y, n, p, ridge, t, grad, withHessian ? hess : null);
 
   let factor: Matrix | null = null;
@@ -168,20 +168,52 @@ interface PassBuffers {
   readonly res: Float64Array;
   readonly w: Float64Array;
   readonly wx: Float64Array;
-  /** Indices of the non-zero coefficients of the current point. */
-  readonly nz: Int32Array;
+  /**
+   * Per column: for a 0/1 column with at most half its values 1 (an indicator of a level), the
+   * rows where it is 1, else null. Sums against such a column run over those rows only: the
+   * other rows' terms are exact zeros, which leave a sum unchanged, so the result is the same.
+   */
+  readonly ones: ReadonlyArray<Int32Array | null>;
+  /** Up to four column indices summed in one sweep. */
+  readonly group: Int32Array;
 }
 
-function passBuffers(cols: Float64Array, n: number, p: number): PassBuffers {
-  return { cols, z: new Float64Array(n), res: new Float64Array(n), w: new Float64Array(n), wx: new Float64Array(n), nz: new Int32Array(p) };
+function passBuffers(design: ColumnDesign, n: number): PassBuffers {
+  return { cols: design.cols, z: new Float64Array(n), res: new Float64Array(n), w: new Float64Array(n), wx: new Float64Array(n), ones: design.ones, group: new Int32Array(4) };
 }
 
-/** The design by columns (column j at [j·n, (j + 1)·n)), the layout of the fit's passes: for `columns` when several fits share one x. */
-export function designColumns(x: Matrix): Float64Array {
+/** The design as the fit's passes read it (see designColumns). */
+export interface ColumnDesign {
+  /** x by columns: column j at [j·n, (j + 1)·n). */
+  readonly cols: Float64Array;
+  /** Per column, the rows where an indicator column is 1, or null (see PassBuffers.ones). */
+  readonly ones: ReadonlyArray<Int32Array | null>;
+}
+
+/** The design by columns with its indicator columns' rows: for `design` when several fits share one x. */
+export function designColumns(x: Matrix): ColumnDesign {
   const { rows: n, cols: p, data: xd } = x;
   const cols = new Float64Array(n * p);
   for (let r = 0; r < n; r++) for (let j = 0; j < p; j++) cols[j * n + r] = xd[r * p + j];
-  return cols;
+  const ones: Array<Int32Array | null> = [];
+  for (let j = 0; j < p; j++) {
+    const o = j * n;
+    let count = 0;
+    let binary = true;
+    for (let r = 0; r < n && binary; r++) {
+      const v = cols[o + r];
+      if (v === 1) count++;
+      else if (v !== 0) binary = false;
+    }
+    if (!binary || count > n / 2) {
+      ones.push(null);
+      continue;
+    }
+    const list = new Int32Array(count);
+    for (let r = 0, k = 0; r < n; r++) if (cols[o + r] === 1) list[k++] = r;
+    ones.push(list);
+  }
+  return { cols, ones };
 }
 
 /**
@@ -192,38 +224,25 @@ export function designColumns(x: Matrix): Float64Array {
  */
 function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, ridge: number, t: Float64Array, grad: Float64Array, hess: Float64Array | null): number {
   const q = p + 1;
-  const { cols, z, res, w, wx, nz } = b;
-  // z = t0 + Σ_j t_j·x_j over the non-zero t_j in column order, up to four columns per sweep
-  // (each z[r] gets the same additions in the same order as one column at a time).
+  const { cols, z, res, w, wx, ones, group } = b;
+  // z = t0 + Σ_j t_j·x_j over the non-zero t_j in column order: dense columns up to four per
+  // sweep, an indicator column as t_j added on its rows (t_j·1 = t_j); each z[r] gets the same
+  // non-zero additions in the same order as one dense column at a time.
   z.fill(t[0]);
   let m = 0;
-  for (let j = 0; j < p; j++) if (t[j + 1] !== 0) nz[m++] = j;
-  for (let k = 0; k < m; k += 4) {
-    const left = m - k;
-    const o0 = nz[k] * n;
-    const t0 = t[nz[k] + 1];
-    if (left >= 4) {
-      const o1 = nz[k + 1] * n;
-      const o2 = nz[k + 2] * n;
-      const o3 = nz[k + 3] * n;
-      const t1 = t[nz[k + 1] + 1];
-      const t2 = t[nz[k + 2] + 1];
-      const t3 = t[nz[k + 3] + 1];
-      for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r] + t2 * cols[o2 + r] + t3 * cols[o3 + r];
-    } else if (left === 3) {
-      const o1 = nz[k + 1] * n;
-      const o2 = nz[k + 2] * n;
-      const t1 = t[nz[k + 1] + 1];
-      const t2 = t[nz[k + 2] + 1];
-      for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r] + t2 * cols[o2 + r];
-    } else if (left === 2) {
-      const o1 = nz[k + 1] * n;
-      const t1 = t[nz[k + 1] + 1];
-      for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r];
-    } else {
-      for (let r = 0; r < n; r++) z[r] += t0 * cols[o0 + r];
+  for (let j = 0; j < p; j++) {
+    const tj = t[j + 1];
+    if (tj === 0) continue;
+    const on = ones[j];
+    if (on === null) {
+      group[m++] = j;
+      if (m === 4) m = addColumns(z, cols, n, t, group, m);
+      continue;
     }
+    if (m > 0) m = addColumns(z, cols, n, t, group, m);
+    for (let k = 0; k < on.length; k++) z[on[k]] += tj;
   }
+  if (m > 0) addColumns(z, cols, n, t, group, m);
   let ll = 0;
   let g0 = 0;
   let h0 = 0;
@@ -249,11 +268,27 @@ function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, rid
     }
   }
   grad[0] = g0;
-  for (let j = 0; j < p; j += 4) dots(res, cols, n, j, Math.min(4, p - j), grad, j + 1);
+  columnSums(res, b, n, 0, p, grad, 1);
   for (let j = 0; j < p; j++) grad[j + 1] -= ridge * t[j + 1];
   if (hess !== null) {
     hess[0] = h0;
     for (let i = 0; i < p; i++) {
+      const hi = (i + 1) * q + 1;
+      const on = ones[i];
+      if (on !== null) {
+        // w·x_i is w on the indicator's rows and 0 elsewhere.
+        let s0 = 0;
+        for (let k = 0; k < on.length; k++) s0 += w[on[k]];
+        hess[i + 1] = s0;
+        hess[hi + i] = s0;
+        let m = 0;
+        for (let j = i + 1; j < p; j++) {
+          group[m++] = j;
+          if (m === 4) m = dotsOn(w, on, cols, n, group, m, hess, hi);
+        }
+        if (m > 0) dotsOn(w, on, cols, n, group, m, hess, hi);
+        continue;
+      }
       const oi = i * n;
       let s0 = 0;
       for (let r = 0; r < n; r++) {
@@ -262,8 +297,7 @@ function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, rid
         s0 += v;
       }
       hess[i + 1] = s0;
-      const hi = (i + 1) * q + 1;
-      for (let j = i; j < p; j += 4) dots(wx, cols, n, j, Math.min(4, p - j), hess, hi + j);
+      columnSums(wx, b, n, i, p, hess, hi);
     }
   }
   let pen = 0;
@@ -271,58 +305,139 @@ function logisticPass(b: PassBuffers, y: Float64Array, n: number, p: number, rid
   return ll - 0.5 * ridge * pen;
 }
 
-/**
- * out[o + c] = Σ_r v[r]·cols[(j + c)·n + r] for c < m ≤ 4: up to four dot products in one pass
- * over v. Each sum runs over r in order, exactly as four separate loops would (the same
- * result to the bit), but four independent chains keep the adder busy where one chain waits on
- * each addition's latency.
- */
-function dots(v: Float64Array, cols: Float64Array, n: number, j: number, m: number, out: Float64Array, o: number): void {
-  const a = j * n;
+/** z[r] += Σ_c t_{j_c}·x_{j_c}[r] for the m ≤ 4 columns j_c = group[c], in that order; returns 0. */
+function addColumns(z: Float64Array, cols: Float64Array, n: number, t: Float64Array, group: Int32Array, m: number): number {
+  const o0 = group[0] * n;
+  const t0 = t[group[0] + 1];
   if (m === 4) {
+    const o1 = group[1] * n;
+    const o2 = group[2] * n;
+    const o3 = group[3] * n;
+    const t1 = t[group[1] + 1];
+    const t2 = t[group[2] + 1];
+    const t3 = t[group[3] + 1];
+    for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r] + t2 * cols[o2 + r] + t3 * cols[o3 + r];
+  } else if (m === 3) {
+    const o1 = group[1] * n;
+    const o2 = group[2] * n;
+    const t1 = t[group[1] + 1];
+    const t2 = t[group[2] + 1];
+    for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r] + t2 * cols[o2 + r];
+  } else if (m === 2) {
+    const o1 = group[1] * n;
+    const t1 = t[group[1] + 1];
+    for (let r = 0; r < n; r++) z[r] = z[r] + t0 * cols[o0 + r] + t1 * cols[o1 + r];
+  } else {
+    for (let r = 0; r < n; r++) z[r] += t0 * cols[o0 + r];
+  }
+  return 0;
+}
+
+/**
+ * out[o + j] = Σ_r v[r]·x_j[r] for columns j = from..p−1: dense columns four per sweep over v
+ * (dotsAt), an indicator column as the sum of v over its rows (v·1 = v, the other terms are
+ * zeros). Every sum runs over r in order, as one column at a time would.
+ */
+function columnSums(v: Float64Array, b: PassBuffers, n: number, from: number, p: number, out: Float64Array, o: number): void {
+  const { cols, ones, group } = b;
+  let m = 0;
+  for (let j = from; j < p; j++) {
+    const on = ones[j];
+    if (on === null) {
+      group[m++] = j;
+      if (m === 4) m = dotsAt(v, cols, n, group, m, out, o);
+      continue;
+    }
+    let s = 0;
+    for (let k = 0; k < on.length; k++) s += v[on[k]];
+    out[o + j] = s;
+  }
+  if (m > 0) dotsAt(v, cols, n, group, m, out, o);
+}
+
+/**
+ * out[o + j] = Σ_r v[r]·x_j[r] for the m ≤ 4 columns j = group[c], in one pass over v; returns
+ * 0. Each sum runs over r in order, exactly as separate loops would (the same result to the
+ * bit), but independent chains keep the adder busy where one chain waits on each addition.
+ */
+function dotsAt(v: Float64Array, cols: Float64Array, n: number, group: Int32Array, m: number, out: Float64Array, o: number): number {
+  const a0 = group[0] * n;
+  if (m === 4) {
+    const a1 = group[1] * n;
+    const a2 = group[2] * n;
+    const a3 = group[3] * n;
     let s0 = 0;
     let s1 = 0;
     let s2 = 0;
     let s3 = 0;
     for (let r = 0; r < n; r++) {
       const x = v[r];
-      s0 += x * cols[a + r];
-      s1 += x * cols[a + n + r];
-      s2 += x * cols[a + 2 * n + r];
-      s3 += x * cols[a + 3 * n + r];
+      s0 += x * cols[a0 + r];
+      s1 += x * cols[a1 + r];
+      s2 += x * cols[a2 + r];
+      s3 += x * cols[a3 + r];
     }
-    out[o] = s0;
-    out[o + 1] = s1;
-    out[o + 2] = s2;
-    out[o + 3] = s3;
+    out[o + group[0]] = s0;
+    out[o + group[1]] = s1;
+    out[o + group[2]] = s2;
+    out[o + group[3]] = s3;
   } else if (m === 3) {
+    const a1 = group[1] * n;
+    const a2 = group[2] * n;
     let s0 = 0;
     let s1 = 0;
     let s2 = 0;
     for (let r = 0; r < n; r++) {
       const x = v[r];
-      s0 += x * cols[a + r];
-      s1 += x * cols[a + n + r];
-      s2 += x * cols[a + 2 * n + r];
+      s0 += x * cols[a0 + r];
+      s1 += x * cols[a1 + r];
+      s2 += x * cols[a2 + r];
     }
-    out[o] = s0;
-    out[o + 1] = s1;
-    out[o + 2] = s2;
+    out[o + group[0]] = s0;
+    out[o + group[1]] = s1;
+    out[o + group[2]] = s2;
   } else if (m === 2) {
+    const a1 = group[1] * n;
     let s0 = 0;
     let s1 = 0;
     for (let r = 0; r < n; r++) {
       const x = v[r];
-      s0 += x * cols[a + r];
-      s1 += x * cols[a + n + r];
+      s0 += x * cols[a0 + r];
+      s1 += x * cols[a1 + r];
     }
-    out[o] = s0;
-    out[o + 1] = s1;
+    out[o + group[0]] = s0;
+    out[o + group[1]] = s1;
   } else {
     let s0 = 0;
-    for (let r = 0; r < n; r++) s0 += v[r] * cols[a + r];
-    out[o] = s0;
+    for (let r = 0; r < n; r++) s0 += v[r] * cols[a0 + r];
+    out[o + group[0]] = s0;
   }
+  return 0;
+}
+
+/** out[o + j] = Σ over the indicator rows `on` of w[r]·x_j[r], for the m ≤ 4 columns j = group[c]; returns 0. */
+function dotsOn(w: Float64Array, on: Int32Array, cols: Float64Array, n: number, group: Int32Array, m: number, out: Float64Array, o: number): number {
+  const a0 = group[0] * n;
+  const a1 = m > 1 ? group[1] * n : a0;
+  const a2 = m > 2 ? group[2] * n : a0;
+  const a3 = m > 3 ? group[3] * n : a0;
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  for (let k = 0; k < on.length; k++) {
+    const r = on[k];
+    const x = w[r];
+    s0 += x * cols[a0 + r];
+    s1 += x * cols[a1 + r];
+    s2 += x * cols[a2 + r];
+    s3 += x * cols[a3 + r];
+  }
+  out[o + group[0]] = s0;
+  if (m > 1) out[o + group[1]] = s1;
+  if (m > 2) out[o + group[2]] = s2;
+  if (m > 3) out[o + group[3]] = s3;
+  return 0;
 }
 
 /** Cholesky factor of H, with a small diagonal jitter when H is singular. */

@@ -99,6 +99,51 @@ describe('logisticRegression', () => {
     expect(fit.coef[1]).toBeLessThan(-1.3);
   });
 
+  it('with level indicators (summed over their rows only) gives each level its log-odds, and the score equations hold beside a continuous input', () => {
+    // A 4-level factor as indicators of levels 1..3 (each a quarter of the rows, so the fit's
+    // passes sum over the indicator rows): the saturated MLE is logit of each level's share of
+    // y = 1, the intercept that of level 0 (an analytic truth).
+    const rng = Rng.create(31);
+    const n = 1200;
+    const x = zeros(n, 3);
+    const y = new Float64Array(n);
+    const ones = [0, 0, 0, 0];
+    const count = [0, 0, 0, 0];
+    const pr = [0.2, 0.45, 0.6, 0.8];
+    for (let r = 0; r < n; r++) {
+      const c = r % 4;
+      if (c > 0) x.data[r * 3 + c - 1] = 1;
+      y[r] = rng.uniform() < pr[c] ? 1 : 0;
+      ones[c] += y[r];
+      count[c]++;
+    }
+    const logit = (p: number) => Math.log(p / (1 - p));
+    const fit = logisticRegression(x, y, { ridge: 0, tol: 1e-12 });
+    expect(fit.converged).toBe(true);
+    expect(fit.intercept).toBeCloseTo(logit(ones[0] / count[0]), 9);
+    for (let c = 1; c < 4; c++) expect(fit.coef[c - 1]).toBeCloseTo(logit(ones[c] / count[c]) - logit(ones[0] / count[0]), 9);
+    // With a continuous input beside the indicators: Xᵀ(y − p) = λβ (intercept unpenalised).
+    const xm = zeros(n, 4);
+    for (let r = 0; r < n; r++) {
+      xm.data.set(x.data.subarray(r * 3, r * 3 + 3), r * 4);
+      const a = rng.normal();
+      xm.data[r * 4 + 3] = a;
+      y[r] = rng.uniform() < 1 / (1 + Math.exp(-(pr[r % 4] - 0.5 + 0.7 * a))) ? 1 : 0;
+    }
+    const ridge = 1e-3;
+    const mixed = logisticRegression(xm, y, { ridge, tol: 1e-12 });
+    const score = new Float64Array(5);
+    for (let r = 0; r < n; r++) {
+      let z = mixed.intercept;
+      for (let j = 0; j < 4; j++) z += xm.data[r * 4 + j] * mixed.coef[j];
+      const res = y[r] - 1 / (1 + Math.exp(-z));
+      score[0] += res;
+      for (let j = 0; j < 4; j++) score[j + 1] += res * xm.data[r * 4 + j];
+    }
+    expect(Math.abs(score[0])).toBeLessThan(1e-8);
+    for (let j = 0; j < 4; j++) expect(Math.abs(score[j + 1] - ridge * mixed.coef[j])).toBeLessThan(1e-8);
+  });
+
   it('stays finite under perfect separation thanks to the ridge', () => {
     const x = fromRows([[-2], [-1], [-0.5], [0.5], [1], [2]]);
     const y = Float64Array.from([0, 0, 0, 1, 1, 1]);
