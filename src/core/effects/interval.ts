@@ -19,12 +19,20 @@ export interface MixtureSummary {
   readonly graphShare: number;
 }
 
-function mixtureCdf(x: number, mu: Float64Array, se: Float64Array, w: Float64Array, G: number): number {
+/**
+ * Graphs often share a component (the same simulated columns and cross-check give the same
+ * estimate and se): first[g] is the first graph with graph g's (μ, se), whose Φ value
+ * (phi[first[g]], filled as the sum goes) graph g reuses — the same number, computed once.
+ */
+function mixtureCdf(x: number, mu: Float64Array, se: Float64Array, w: Float64Array, G: number, first: Int32Array, phi: Float64Array): number {
   let f = 0;
   for (let g = 0; g < G; g++) {
     if (w[g] === 0) continue;
-    if (se[g] > 0) f += w[g] * normalCdf((x - mu[g]) / se[g]);
-    else if (x >= mu[g]) f += w[g];
+    if (se[g] > 0) {
+      const k = first[g];
+      if (k === g) phi[g] = normalCdf((x - mu[g]) / se[g]);
+      f += w[g] * phi[k];
+    } else if (x >= mu[g]) f += w[g];
   }
   return f;
 }
@@ -45,13 +53,24 @@ function mixturePdf(x: number, mu: Float64Array, se: Float64Array, w: Float64Arr
  * leaves the bracket or the density vanishes (point masses); stops at 1e-10 in probability or
  * a bracket 1e-12 of its scale wide.
  */
-function mixtureQuantile(q: number, mu: Float64Array, se: Float64Array, w: Float64Array, G: number, lo: number, hi: number, start: number): number {
+function mixtureQuantile(
+  q: number,
+  mu: Float64Array,
+  se: Float64Array,
+  w: Float64Array,
+  G: number,
+  lo: number,
+  hi: number,
+  start: number,
+  first: Int32Array,
+  phi: Float64Array,
+): number {
   let a = lo;
   let b = hi;
   let x = Math.min(hi, Math.max(lo, start));
   const scale = Math.abs(lo) + Math.abs(hi) + 1e-300;
   for (let it = 0; it < 100; it++) {
-    const F = mixtureCdf(x, mu, se, w, G) - q;
+    const F = mixtureCdf(x, mu, se, w, G, first, phi) - q;
     if (Math.abs(F) < 1e-10) return x;
     if (F < 0) a = x;
     else b = x;
@@ -89,11 +108,18 @@ export function mixtureInterval(mu: Float64Array, se: Float64Array, w: Float64Ar
   if (!(hi > lo)) return { estimate: m, lower: m, upper: m, sd: Math.sqrt(total), graphShare: total > 0 ? between / total : 0 };
   const wn = new Float64Array(G);
   for (let g = 0; g < G; g++) wn[g] = w[g] / sw;
+  const first = new Int32Array(G);
+  for (let g = 0; g < G; g++) {
+    let k = 0;
+    while (k < g && !(wn[k] !== 0 && mu[k] === mu[g] && se[k] === se[g])) k++;
+    first[g] = k;
+  }
+  const phi = new Float64Array(G);
   const alpha = (1 - level) / 2;
   return {
     estimate: m,
-    lower: mixtureQuantile(alpha, mu, se, wn, G, lo, hi, m - 1.6448536269514722 * Math.sqrt(total)),
-    upper: mixtureQuantile(1 - alpha, mu, se, wn, G, lo, hi, m + 1.6448536269514722 * Math.sqrt(total)),
+    lower: mixtureQuantile(alpha, mu, se, wn, G, lo, hi, m - 1.6448536269514722 * Math.sqrt(total), first, phi),
+    upper: mixtureQuantile(1 - alpha, mu, se, wn, G, lo, hi, m + 1.6448536269514722 * Math.sqrt(total), first, phi),
     sd: Math.sqrt(total),
     graphShare: total > 0 ? between / total : 0,
   };
