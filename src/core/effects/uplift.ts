@@ -135,9 +135,13 @@ export function upliftTable(cache: EffectCache, q: UpliftQuery): UpliftTable {
   const armCost = new Float64Array(A + 1);
   for (let a = 0; a < A; a++) armCost[a] = costs[a] - refCost;
   const policyValue = assignmentValue(u, model.referenceWeights, model.graphWeights, checks, assign, A, armCost, sign, level);
-  const treatAll = labels.map((arm, a) => ({ arm, ...assignmentValue(u, model.referenceWeights, model.graphWeights, checks, new Int32Array(R).fill(a), A, armCost, sign, level) }));
+  const treatAll: Array<ValueInterval & { readonly arm: string }> = [];
   let bestAll = 0;
-  for (const t of treatAll) bestAll = Math.max(bestAll, t.estimate);
+  for (let a = 0; a < A; a++) {
+    const v = assignmentValue(u, model.referenceWeights, model.graphWeights, checks, new Int32Array(R).fill(a), A, armCost, sign, level);
+    treatAll.push({ arm: labels[a], estimate: v.estimate, lower: v.lower, upper: v.upper });
+    bestAll = Math.max(bestAll, v.estimate);
+  }
   const cautions = queryCautions(q.treatment, q.outcome, u.pathProbability, 0, rows.length > 0 ? rows[0].effects[0].perGraph : [], checks !== null);
   cautions.push(
     q.better === 'higher'

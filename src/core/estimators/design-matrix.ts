@@ -120,11 +120,12 @@ function levelCount(c: Column): number {
 /** Rows where the treatment, the outcome and every adjuster are observed. */
 export function completeRows(frame: Frame, names: readonly string[]): Int32Array {
   const cols = names.map((nm) => frame.columns[columnIndex(frame, nm)].values);
-  const out: number[] = [];
+  const out = new Int32Array(frame.nRows);
+  let n = 0;
   for (let r = 0; r < frame.nRows; r++) {
     let ok = true;
     for (let c = 0; c < cols.length && ok; c++) if (Number.isNaN(cols[c][r])) ok = false;
-    if (ok) out.push(r);
+    if (ok) out[n++] = r;
   }
-  return Int32Array.from(out);
+  return n === out.length ? out : out.slice(0, n);
 }
