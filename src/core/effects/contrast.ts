@@ -105,31 +105,49 @@ export function contrast(
   // Graphs that share an adjustment set share its scores: one score contrast per set.
   const byScores = new Map<unknown, ReturnType<typeof scoreContrast>>();
   const vals = u.values;
+  // Per graph: the weighted means of both arms and the Monte Carlo se (a graph with the same
+  // outcomes as an earlier one, u.sameAs, takes that graph's).
+  const meansI = new Float64Array(G);
+  const meansJ = new Float64Array(G);
+  const mcSes = new Float64Array(G);
   for (let g = 0; g < G; g++) {
-    const base = g * A * R;
-    const yi = base + i * R;
-    const yj = base + j * R;
-    let sw = 0;
-    let s = 0;
-    let si = 0;
-    let sj = 0;
-    for (let k = 0; k < cnt; k++) {
-      const r = idx[k];
-      const w = weights[r];
-      sw += w;
-      si += w * vals[yi + r];
-      sj += w * vals[yj + r];
+    const h = u.sameAs[g];
+    if (h !== g) {
+      meansI[g] = meansI[h];
+      meansJ[g] = meansJ[h];
+      mcSes[g] = mcSes[h];
+    } else {
+      const base = g * A * R;
+      const yi = base + i * R;
+      const yj = base + j * R;
+      let sw = 0;
+      let s = 0;
+      let si = 0;
+      let sj = 0;
+      for (let k = 0; k < cnt; k++) {
+        const r = idx[k];
+        const w = weights[r];
+        sw += w;
+        si += w * vals[yi + r];
+        sj += w * vals[yj + r];
+      }
+      const mI = si / sw;
+      const mJ = sj / sw;
+      const mm = mI - mJ;
+      for (let k = 0; k < cnt; k++) {
+        const r = idx[k];
+        const d = vals[yi + r] - vals[yj + r] - mm;
+        s += weights[r] * weights[r] * d * d;
+      }
+      meansI[g] = mI;
+      meansJ[g] = mJ;
+      mcSes[g] = cnt > 1 ? Math.sqrt((s * cnt) / (cnt - 1)) / sw : 0;
     }
-    const meanI = si / sw;
-    const meanJ = sj / sw;
+    const meanI = meansI[g];
+    const meanJ = meansJ[g];
     const m = meanI - meanJ;
-    for (let k = 0; k < cnt; k++) {
-      const r = idx[k];
-      const d = vals[yi + r] - vals[yj + r] - m;
-      s += weights[r] * weights[r] * d * d;
-    }
     rows = cnt;
-    const mcSe = cnt > 1 ? Math.sqrt((s * cnt) / (cnt - 1)) / sw : 0;
+    const mcSe = mcSes[g];
     const causal = u.causalPath[g] === 1;
     const check = checks ? checks[g] : null;
     let cc: CrossCheckEstimate | null = null;

@@ -29,6 +29,12 @@ export interface UnitOutcomes {
   readonly values: Float64Array;
   /** Per graph: 1 if a directed path treatment ⇝ outcome exists. */
   readonly causalPath: Uint8Array;
+  /**
+   * Per graph: the first graph whose A × R outcomes are the same numbers (itself if none).
+   * Graphs of a bootstrap set often simulate identical columns (the memo in counterfactual.ts);
+   * sums over such a graph's rows need not be repeated.
+   */
+  readonly sameAs: Int32Array;
   readonly pathProbability: number;
 }
 
@@ -94,7 +100,16 @@ export class EffectCache {
     }
     const adj = this.adjustmentsFor(t, y);
     for (let g = 0; g < G; g++) causal[g] = adj[g].causalPath ? 1 : 0;
-    const entry: UnitOutcomes = { treatment: t, outcome: y, outcomeLevel: lv, arms: resolved, values, causalPath: causal, pathProbability: pathProbability(model, t, y) };
+    const entry: UnitOutcomes = {
+      treatment: t,
+      outcome: y,
+      outcomeLevel: lv,
+      arms: resolved,
+      values,
+      causalPath: causal,
+      sameAs: identicalBlocks(values, G, A * R),
+      pathProbability: pathProbability(model, t, y),
+    };
     if (this.units.size >= MAX_CACHED_CONTRASTS) {
       const oldest = this.units.keys().next().value as string;
       this.units.delete(oldest);
@@ -156,4 +171,25 @@ export class EffectCache {
 
 function sameSet(a: readonly number[], b: readonly number[]): boolean {
   return a.length === b.length && a.every((v, i) => v === b[i]);
+}
+
+/** For each of G consecutive blocks of `size` values: the first block equal to it value for value (itself if none). */
+function identicalBlocks(values: Float64Array, G: number, size: number): Int32Array {
+  const same = new Int32Array(G);
+  for (let g = 0; g < G; g++) {
+    same[g] = g;
+    for (let h = 0; h < g; h++) {
+      if (same[h] !== h) continue;
+      const a = h * size;
+      const b = g * size;
+      let i = 0;
+      // Object.is: NaN equals NaN and 0 differs from −0, so equal blocks give equal sums.
+      while (i < size && Object.is(values[a + i], values[b + i])) i++;
+      if (i === size) {
+        same[g] = h;
+        break;
+      }
+    }
+  }
+  return same;
 }

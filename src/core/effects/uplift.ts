@@ -187,6 +187,13 @@ function assignmentValue(
   // Graphs sharing an adjustment set share its scores: their standard error is computed once.
   const scoreSe = new Map<object, number>();
   for (let g = 0; g < G; g++) {
+    const h = u.sameAs[g];
+    if (h !== g && u.causalPath[h] === u.causalPath[g] && (checks ? checks[g].scores === checks[h].scores : true)) {
+      // The same outcomes, path flag and cross-check scores as graph h: the same numbers.
+      mu[g] = mu[h];
+      se[g] = se[h];
+      continue;
+    }
     const base = g * A1 * R;
     let sw = 0;
     let s = 0;
