@@ -22,7 +22,7 @@
  * rows with less Monte Carlo noise.
  */
 import type { CompiledModel } from '../scm/compiled-model.js';
-import { KIND_CATEGORICAL, KIND_CONTINUOUS, MECH_PARENT_COUNT, MECH_PARENT_OFFSET, MECH_STRIDE } from '../scm/compiled-model.js';
+import { KIND_CATEGORICAL, KIND_CONTINUOUS, MECH_HIDDEN, MECH_PARENT_COUNT, MECH_PARENT_OFFSET, MECH_STRIDE } from '../scm/compiled-model.js';
 import { conditionHolds, InterventionError } from '../scm/intervention.js';
 import { applyNoise, kernelWidths, mechanismOutput } from '../scm/kernel.js';
 import { fixedPreactivation, isAdditiveMlp, mlpOutputRows, PARENT_CONSTANT, PARENT_FIXED, PARENT_VARYING } from '../scm/mlp-row-kernel.js';
@@ -42,7 +42,7 @@ export interface SimulationScratch {
   /**
    * MLP pre-activations from the parents that keep their observed values, per (mechanism,
    * parent roles): the same in every arm and graph (scm/mlp-row-kernel.ts). At most
-   * MAX_FIXED_PARTS are kept.
+   * MAX_FIXED_VALUES numbers are kept (the tables are dropped when a new one would pass it).
    */
   readonly fixed: Map<string, Float64Array>;
   /** Per parent of one mechanism: its role and, for a constant one, its value; and the constant part per hidden unit. */
@@ -52,8 +52,8 @@ export interface SimulationScratch {
   readonly inputIndex: Int32Array;
 }
 
-/** Most fixed pre-activation tables kept in a scratch (each R × (h + 1) values). */
-const MAX_FIXED_PARTS = 32;
+/** Most values kept in a scratch's fixed pre-activation tables (each R × (h + 1)): 16 MB. */
+const MAX_FIXED_VALUES = 1 << 21;
 
 /** Allocate scratch for a model (once per query, or kept in the query cache). */
 export function simulationScratch(model: CompiledModel): SimulationScratch {
@@ -315,7 +315,9 @@ function simulateChangedRows(
       }
       let fixed = scratch.fixed.get(key) ?? null;
       if (fixed === null && anyFixed) {
-        if (scratch.fixed.size >= MAX_FIXED_PARTS) scratch.fixed.clear();
+        let kept = 0;
+        for (const f of scratch.fixed.values()) kept += f.length;
+        if (kept > 0 && kept + (model.mechTable[m * MECH_STRIDE + MECH_HIDDEN] + 1) * R > MAX_FIXED_VALUES) scratch.fixed.clear();
         fixed = fixedPreactivation(model, m, role);
         scratch.fixed.set(key, fixed);
       }
