@@ -80,6 +80,8 @@ export function contrast(
   j: number,
   mask: Uint8Array | null,
   level: number,
+  /** The rows of `mask` in increasing order, when the caller has them (several contrasts on one segment). */
+  maskRows?: Int32Array,
 ): ContrastSummary {
   const G = graphWeights.length;
   const A = u.arms.length;
@@ -94,6 +96,7 @@ export function contrast(
   // The rows in the segment, listed once: a segment is often a small share of the rows.
   let idx: Int32Array;
   if (mask === null) idx = identityRows(R);
+  else if (maskRows !== undefined) idx = maskRows;
   else {
     let n = 0;
     for (let r = 0; r < R; r++) if (mask[r] === 1) n++;

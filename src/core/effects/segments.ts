@@ -138,10 +138,13 @@ function fmt(x: number): string {
   return Math.abs(x) >= 1000 || Number.isInteger(x) ? String(Math.round(x * 100) / 100) : x.toPrecision(4);
 }
 
-/** Resolve a segment (checking it is pre-treatment) to its reference-row mask. */
-export function resolveSegment(model: CompiledModel, treatment: number, segment: Segment): ResolvedSegment {
+/**
+ * Resolve a segment (checking it is pre-treatment) to its reference-row mask. `checked`: the
+ * caller has already checked its variables (segments made by expandSegments from cells or bins).
+ */
+export function resolveSegment(model: CompiledModel, treatment: number, segment: Segment, checked = false): ResolvedSegment {
   const conds = resolveConditions(model, segment.conditions);
-  checkPreTreatment(model, treatment, conds.map((c) => c.variable));
+  if (!checked) checkPreTreatment(model, treatment, conds.map((c) => c.variable));
   const mask = segmentMask(model, conds);
   let count = 0;
   let weight = 0;

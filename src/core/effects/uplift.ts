@@ -93,7 +93,9 @@ export function upliftTable(cache: EffectCache, q: UpliftQuery): UpliftTable {
   const A = q.arms.length;
   // Reference is arm index A in the simulation.
   const u = cache.outcomes(q.treatment, q.outcome, [...q.arms, q.reference], q.outcomeLevel);
-  const segments = expandSegments(model, u.treatment, q.by).map((s) => resolveSegment(model, u.treatment, s));
+  // Segments expanded from cells or bins were checked (pre-treatment) by expandSegments.
+  const expanded = !('segments' in q.by);
+  const segments = expandSegments(model, u.treatment, q.by).map((s) => resolveSegment(model, u.treatment, s, expanded));
   const checks = q.crossCheck === false ? null : cache.crossChecks(u);
   const labels = q.arms.map(armLabel);
   const refLabel = armLabel(q.reference);
@@ -107,8 +109,10 @@ export function upliftTable(cache: EffectCache, q: UpliftQuery): UpliftTable {
     const net: number[] = [];
     let best = -1;
     let bestVal = 0;
+    const segRows = new Int32Array(seg.count);
+    for (let r = 0, k = 0; r < R; r++) if (seg.mask[r] === 1) segRows[k++] = r;
     for (let a = 0; a < A; a++) {
-      const c = contrast(u, model.referenceWeights, model.graphWeights, checks, a, A, seg.mask, level);
+      const c = contrast(u, model.referenceWeights, model.graphWeights, checks, a, A, seg.mask, level, segRows);
       const e = finish(q.treatment, q.outcome, labels[a], refLabel, u.pathProbability, seg, R, c, checks !== null);
       effects.push(e);
       const v = sign * e.estimate - (costs[a] - refCost);
