@@ -50,6 +50,8 @@ export interface SimulationScratch {
   readonly constants: Float64Array;
   readonly constPart: Float64Array;
   readonly inputIndex: Int32Array;
+  /** Per arm memo (one arm of one query): the rows the arm changes and whether it sets one treatment value on them all. */
+  readonly changed: WeakMap<Map<string, Float64Array>, { readonly rows: Int32Array; tConstant: boolean }>;
 }
 
 /** Most values kept in a scratch's fixed pre-activation tables (each R × (h + 1)): 16 MB. */
@@ -71,6 +73,7 @@ export function simulationScratch(model: CompiledModel): SimulationScratch {
     constants: new Float64Array(model.p),
     constPart: new Float64Array(Math.max(1, hidden)),
     inputIndex: new Int32Array(Math.max(1, hidden)),
+    changed: new WeakMap(),
   };
 }
 
@@ -257,8 +260,18 @@ function simulateChangedRows(
     out.set(yHit, o);
     return true;
   }
-  let n = 0;
-  for (let r = 0; r < R; r++) if (work[tOff + r] !== ref[tOff + r]) rows[n++] = r;
+  // The arm's changed rows are the same in every graph: listed once per arm (per memo).
+  let listed = armMemo ? scratch.changed.get(armMemo) : undefined;
+  if (listed === undefined) {
+    let count = 0;
+    for (let r = 0; r < R; r++) if (work[tOff + r] !== ref[tOff + r]) rows[count++] = r;
+    listed = { rows: rows.slice(0, count), tConstant: true };
+    for (let i = 1; i < count && listed.tConstant; i++) if (work[tOff + rows[i]] !== work[tOff + rows[0]]) listed.tConstant = false;
+    if (armMemo) scratch.changed.set(armMemo, listed);
+  } else {
+    rows.set(listed.rows);
+  }
+  const n = listed.rows.length;
   if (n === R) return false;
   // Rows the arm leaves as they are: the observed outcome.
   out.set(ref.subarray(y * R, (y + 1) * R), o);
@@ -282,8 +295,7 @@ function simulateChangedRows(
     // The treatment's value when it is one value on every changed row (a 'set' arm): then its
     // part of an MLP's pre-activation is one number per hidden unit.
     const tFirst = work[tOff + rows[0]];
-    let tConstant = true;
-    for (let i = 1; i < n && tConstant; i++) if (work[tOff + rows[i]] !== tFirst) tConstant = false;
+    const tConstant = listed.tConstant;
     const { role, constants } = scratch;
     /** f(parents) of mechanism m on the changed rows into `mean`. */
     const evaluate = (m: number): void => {
