@@ -46,19 +46,20 @@ export function isAdditiveMlp(model: CompiledModel, m: number): boolean {
   return (fam === FAMILY_MLP || fam === FAMILY_MLP_BERNOULLI) && model.mechTable[row + MECH_ENCODING] === ENCODING_ADDITIVE;
 }
 
+/** Where MLP mechanism m's numbers sit: hidden units, encoded inputs, parameter and parent offsets, parent count. */
+function mlpLayout(model: CompiledModel, m: number): { h: number; nIn: number; po: number; pa: number; pc: number } {
+  const t = model.mechTable;
+  const row = m * MECH_STRIDE;
+  return { h: t[row + MECH_HIDDEN], nIn: t[row + MECH_N_IN], po: t[row + MECH_PARAM_OFFSET], pa: t[row + MECH_PARENT_OFFSET], pc: t[row + MECH_PARENT_COUNT] };
+}
+
 /**
  * (h + 1) × R, unit-major: at [u·R + r], b1_u + Σ over the FIXED parents' inputs of W1_uk·z_k(r)
  * for hidden unit u and reference row r; at [h·R + r], L0 + Σ L_k·z_k(r) (the linear skip
  * part). `role[q]` is the role of the mechanism's q-th parent.
  */
 export function fixedPreactivation(model: CompiledModel, m: number, role: Uint8Array): Float64Array {
-  const t = model.mechTable;
-  const row = m * MECH_STRIDE;
-  const h = t[row + MECH_HIDDEN];
-  const nIn = t[row + MECH_N_IN];
-  const po = t[row + MECH_PARAM_OFFSET];
-  const pa = t[row + MECH_PARENT_OFFSET];
-  const pc = t[row + MECH_PARENT_COUNT];
+  const { h, nIn, po, pa, pc } = mlpLayout(model, m);
   const P = model.mechParams;
   const lin = po + h * nIn + 2 * h + 1;
   const R = model.nReference;
@@ -122,13 +123,9 @@ export function mlpOutputRows(
   pre: Float64Array,
   out: Float64Array,
 ): void {
+  const { h, nIn, po, pa, pc } = mlpLayout(model, m);
   const t = model.mechTable;
   const row = m * MECH_STRIDE;
-  const h = t[row + MECH_HIDDEN];
-  const nIn = t[row + MECH_N_IN];
-  const po = t[row + MECH_PARAM_OFFSET];
-  const pa = t[row + MECH_PARENT_OFFSET];
-  const pc = t[row + MECH_PARENT_COUNT];
   const P = model.mechParams;
   const R = model.nReference;
   const w2 = po + h * nIn + h;
