@@ -78,8 +78,8 @@ export function learn(frame: Frame, knowledge: Knowledge, options: LearnOptions)
     notes.push(`auto: chose ${choice.learner}`);
   }
   const learner = getLearner(name);
-  const kept = copyOf && data.nRows < frame.nRows ? keptCopies(frame, copyOf) : copyOf;
-  const result = learner.learn(data, compiled, kept ? { ...learnerOptions, copyOf: kept } : learnerOptions, Rng.create(seedValue));
+  const copies = copyOf && imputed.kept ? Int32Array.from(imputed.kept, (r) => copyOf[r]) : copyOf;
+  const result = learner.learn(data, compiled, copies ? { ...learnerOptions, copyOf: copies } : learnerOptions, Rng.create(seedValue));
   checkResult(result, compiled);
   return {
     ...result,
@@ -125,15 +125,4 @@ function hasCycle(adj: Uint8Array, n: number): boolean {
     for (let v = 0; v < n; v++) if (adj[u * n + v] === 1 && --indeg[v] === 0) queue.push(v);
   }
   return seen < n;
-}
-
-/** `copyOf` of the rows that listwise deletion keeps (those with no missing cell). */
-function keptCopies(frame: Frame, copyOf: Int32Array): Int32Array {
-  const out: number[] = [];
-  for (let r = 0; r < frame.nRows; r++) {
-    let complete = true;
-    for (const c of frame.columns) if (c.values[r] !== c.values[r]) complete = false;
-    if (complete) out.push(copyOf[r]);
-  }
-  return Int32Array.from(out);
 }

@@ -33,8 +33,9 @@ export function countMissing(frame: Frame): { rows: number; cells: number } {
 /**
  * Fills or removes missing cells (NaN) by `scheme` and reports what was affected
  * ({scheme, rowsAffected, cellsAffected}). A frame without missing cells is returned as is.
+ * When rows were removed, `kept` lists the input rows the output holds, in order.
  */
-export function imputeMissing(frame: Frame, scheme: ImputeScheme = 'mean-mode'): { frame: Frame; report: MissingReport } {
+export function imputeMissing(frame: Frame, scheme: ImputeScheme = 'mean-mode'): { frame: Frame; report: MissingReport; kept?: Int32Array } {
   const { rows, cells } = countMissing(frame);
   const report: MissingReport = { scheme, rowsAffected: rows, cellsAffected: cells };
   if (cells === 0) return { frame, report };
@@ -42,14 +43,11 @@ export function imputeMissing(frame: Frame, scheme: ImputeScheme = 'mean-mode'):
   if (scheme === 'drop-rows') {
     const keep = new Uint8Array(n).fill(1);
     for (const c of frame.columns) for (let r = 0; r < n; r++) if (c.values[r] !== c.values[r]) keep[r] = 0;
-    const nKeep = n - rows;
-    const columns: Column[] = frame.columns.map((c) => {
-      const out = new Float64Array(nKeep);
-      let t = 0;
-      for (let r = 0; r < n; r++) if (keep[r] === 1) out[t++] = c.values[r];
-      return { ...c, values: out };
-    });
-    return { frame: { nRows: nKeep, columns }, report };
+    const kept = new Int32Array(n - rows);
+    let t = 0;
+    for (let r = 0; r < n; r++) if (keep[r] === 1) kept[t++] = r;
+    const columns: Column[] = frame.columns.map((c) => ({ ...c, values: Float64Array.from(kept, (r) => c.values[r]) }));
+    return { frame: { nRows: kept.length, columns }, report, kept };
   }
   if (scheme !== 'mean-mode') throw new RangeError(`imputeMissing: unknown scheme "${String(scheme)}"`);
   const columns: Column[] = frame.columns.map((c) => {

@@ -132,10 +132,14 @@ describe('imputeMissing', () => {
 
   it('drop-rows removes every row with a missing cell', () => {
     const f = demoFrame();
-    const { frame, report } = imputeMissing(f, 'drop-rows');
+    const { frame, report, kept } = imputeMissing(f, 'drop-rows');
     expect(report).toEqual({ scheme: 'drop-rows', rowsAffected: 2, cellsAffected: 3 });
     expect(frame.nRows).toBe(48);
     for (const c of frame.columns) expect(c.values.length).toBe(48);
+    // kept: the input rows with no missing cell, in order, and each output row is that input row.
+    const complete = Array.from({ length: f.nRows }, (_, r) => r).filter((r) => f.columns.every((c) => !Number.isNaN(c.values[r])));
+    expect(Array.from(kept!)).toEqual(complete);
+    for (const [j, c] of frame.columns.entries()) expect(Array.from(c.values)).toEqual(complete.map((r) => f.columns[j].values[r]));
   });
 
   it('reports zeros on a complete frame', () => {
