@@ -6,7 +6,7 @@ import { searchDag } from './cam-search.js';
 import type { CompiledKnowledge } from './knowledge.js';
 import type { Learner, LearnResult } from './learner.js';
 import { checkKnowledge } from './notears-common.js';
-import { createRffRidge } from './rff-ridge.js';
+import { createRffRidge, type RffRidge } from './rff-ridge.js';
 
 /**
  * Order-and-prune learner for nonlinear additive noise models, after CAM (Bühlmann, Peters &
@@ -142,19 +142,27 @@ export const cam: Learner<CamOptions> = {
     const n = Math.min(nAll, o.maxRows);
     if (n < 2 * o.folds) throw new RangeError(`cam: need at least ${2 * o.folds} rows for ${o.folds}-fold cross-validation, got ${n}`);
     // Standardised copies on (at most maxRows evenly spaced) rows: the length-scales assume unit
-    // variance, and rescaling a column only shifts every score by the same constant.
+    // variance, and rescaling a column only shifts every score by the same constant. A
+    // categorical variable becomes one indicator column per level, so that no order of its
+    // level codes enters the fits (colsOf[v]: the columns of variable v).
     const cols: Float64Array[] = [];
+    const colsOf: number[][] = [];
+    const scaleOf: number[] = [];
+    const codesOf: Float64Array[] = [];
     for (const c of frame.columns) {
       const w = new Float64Array(n);
       for (let r = 0; r < n; r++) w[r] = c.values[Math.floor((r * nAll) / n)];
-      let mu = 0;
-      for (let r = 0; r < n; r++) mu += w[r];
-      mu /= n;
-      let ss = 0;
-      for (let r = 0; r < n; r++) ss += (w[r] - mu) ** 2;
-      const inv = ss > 0 ? 1 / Math.sqrt(ss / n) : 0;
-      for (let r = 0; r < n; r++) w[r] = (w[r] - mu) * inv;
-      cols.push(w);
+      codesOf.push(w);
+      let levels = c.kind === 'categorical' ? Math.max(2, c.levels?.length ?? 0) : 0;
+      if (levels > 0) for (let r = 0; r < n; r++) levels = Math.max(levels, w[r] + 1);
+      const own: number[] = [];
+      for (let k = 0; k < Math.max(1, levels); k++) {
+        own.push(cols.length);
+        const col = levels > 0 ? Float64Array.from(w, (v) => (v === k ? 1 : 0)) : Float64Array.from(w);
+        scaleOf.push(standardise(col));
+        cols.push(col);
+      }
+      colsOf.push(own);
     }
     let copyOf: Int32Array | undefined;
     if (o.copyOf) {
@@ -164,11 +172,13 @@ export const cam: Learner<CamOptions> = {
     }
     const reg = createRffRidge(cols, { features: o.features, lengthScales: o.lengthScales, additive: o.additive, penalties: o.penalties, folds: o.folds, penaltyPerGroup: false, copyOf }, rng);
     const cache = new Map<string, number>();
+    const resid = cols.length > d ? new Float64Array(n * Math.max(...colsOf.map((c) => c.length))) : new Float64Array(0);
     const score = (j: number, inputs: readonly number[]): number => {
       const key = `${j}:${inputs.join(',')}`;
       let v = cache.get(key);
       if (v === undefined) {
-        v = Math.log(Math.max(reg.heldOutMse(j, inputs), 1e-12));
+        const x = inputs.length === 0 || cols.length === d ? inputs : inputs.flatMap((i) => colsOf[i]);
+        v = colsOf[j].length === 1 ? Math.log(Math.max(reg.heldOutMse(colsOf[j][0], x), 1e-12)) : indicatorScore(reg, colsOf[j], scaleOf, codesOf[j], x, n, resid);
         cache.set(key, v);
       }
       return v;
@@ -221,8 +231,10 @@ export const cam: Learner<CamOptions> = {
       `step 1 (edge search): ${step1.added} additions, ${step1.removed} removals, ${step1.reversed} reversals; step 2 (order search): ${step2.moves} moves; step 3: ${pruned.length} edges pruned (held-out gain < ${o.pruneGain})`,
     ];
     if (n < nAll) notes.push(`used ${n} of ${nAll} rows, evenly spaced (maxRows)`);
-    const nonCont = frame.columns.filter((c) => c.kind !== 'continuous').map((c) => c.name);
-    if (nonCont.length > 0) notes.push(`binary/categorical columns treated as numbers (the score assumes Gaussian noise): ${nonCont.join(', ')}`);
+    const binary = frame.columns.filter((c) => c.kind === 'binary').map((c) => c.name);
+    const categorical = frame.columns.filter((c) => c.kind === 'categorical').map((c) => c.name);
+    if (binary.length > 0) notes.push(`binary columns taken as 0/1 values (the score assumes Gaussian noise): ${binary.join(', ')}`);
+    if (categorical.length > 0) notes.push(`categorical columns as one indicator per level, scored by the log-determinant of their indicators' residual covariance: ${categorical.join(', ')}`);
     return {
       learner: 'cam',
       kind: 'dag',
@@ -256,4 +268,47 @@ function tieredTopologicalOrder(adj: Uint8Array, d: number, knowledge: CompiledK
     for (let v = 0; v < d; v++) if (adj[pick * d + v] === 1) indeg[v]--;
   }
   return order;
+}
+
+/** Replaces w by (w − mean) / sd (by 0 when constant); returns the sd. */
+function standardise(w: Float64Array): number {
+  const n = w.length;
+  let mu = 0;
+  for (let r = 0; r < n; r++) mu += w[r];
+  mu /= n;
+  let ss = 0;
+  for (let r = 0; r < n; r++) ss += (w[r] - mu) ** 2;
+  const inv = ss > 0 ? 1 / Math.sqrt(ss / n) : 0;
+  for (let r = 0; r < n; r++) w[r] = (w[r] - mu) * inv;
+  return Math.sqrt(ss / n);
+}
+
+/**
+ * Score of a categorical node with indicator columns `own` given the input columns `x`, on the
+ * scale of the continuous nodes' log σ̂² (twice a negative log-likelihood per row, up to a
+ * constant): twice the held-out cross-entropy, in nats, of the class probabilities that the
+ * indicators' held-out regressions predict (each clipped to [1e-3, 1] and the row renormalised).
+ * A mixed sum of these and the continuous nodes' Gaussian terms is the log-likelihood of a
+ * mixed density (counting measure for the discrete nodes), so the two directions of an edge
+ * between a discrete and a continuous node are compared on one scale. The indicators enter
+ * symmetrically, so renumbering the levels does not change the score.
+ */
+function indicatorScore(reg: RffRidge, own: readonly number[], scaleOf: readonly number[], raw: Float64Array, x: readonly number[], n: number, resid: Float64Array): number {
+  const k = own.length;
+  for (let a = 0; a < k; a++) reg.heldOutMse(own[a], x, resid.subarray(a * n, (a + 1) * n));
+  let loss = 0;
+  for (let r = 0; r < n; r++) {
+    // Residuals are of standardised indicators: prediction = indicator − residual, rescaled.
+    let sum = 0;
+    let pTrue = 0;
+    for (let a = 0; a < k; a++) {
+      const s = scaleOf[own[a]];
+      const ind = raw[r] === a ? 1 : 0;
+      const pred = Math.min(1, Math.max(1e-3, ind - resid[a * n + r] * s));
+      sum += pred;
+      if (ind === 1) pTrue = pred;
+    }
+    loss -= Math.log(pTrue / sum);
+  }
+  return (2 * loss) / n;
 }

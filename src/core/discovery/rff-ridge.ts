@@ -47,8 +47,12 @@ export interface RffRidgeOptions {
 }
 
 export interface RffRidge {
-  /** Held-out mean squared error of column `target` regressed on columns `inputs` (none: the variance). */
-  heldOutMse(target: number, inputs: readonly number[]): number;
+  /**
+   * Held-out mean squared error of column `target` regressed on columns `inputs` (none: the
+   * variance). With `residuals` (length n), also writes each row's held-out residual there, at
+   * the penalty that minimises the error.
+   */
+  heldOutMse(target: number, inputs: readonly number[], residuals?: Float64Array): number;
   /** Number of regressions fitted so far. */
   readonly fits: () => number;
 }
@@ -106,9 +110,11 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
   const mu = new Float64Array(maxW);
   const beta = new Float64Array(maxW);
   const sse = new Float64Array(combos);
+  // When set, foldError writes the held-out residuals there (by row).
+  let resid: Float64Array | null = null;
   let count = 0;
 
-  function heldOutMse(target: number, inputs: readonly number[]): number {
+  function heldOutMse(target: number, inputs: readonly number[], residuals?: Float64Array): number {
     count++;
     const s = inputs.length;
     const p = s === 0 ? 0 : s * (1 + A) + K;
@@ -200,17 +206,25 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
     for (let f = 0; f < V; f++) foldError(f, p, s);
     let best = 0;
     for (let g = 1; g < combos; g++) if (sse[g] < sse[best]) best = g;
-    return sse[best] / n;
+    const mse = sse[best] / n;
+    // The residuals: the chosen penalty's fits once more (re-solving beats keeping every
+    // combination's residuals on every call, which most callers never read).
+    if (residuals) {
+      resid = residuals;
+      for (let f = 0; f < V; f++) foldError(f, p, s, best);
+      resid = null;
+    }
+    return mse;
   }
 
-  /** Adds fold f's held-out squared error to sse[g] for every penalty combination g. */
-  function foldError(f: number, p: number, s: number): void {
+  /** Adds fold f's held-out squared error to sse[g] for every penalty combination g (or only `only`). */
+  function foldError(f: number, p: number, s: number, only = -1): void {
     const w = p + 1;
     const G = foldGram[f];
     const S = foldSum[f];
     const m = n - (bounds[f + 1] - bounds[f]);
     for (let i = 0; i < w; i++) mu[i] = (totSum[i] - S[i]) / m;
-    for (let g = 0; g < combos; g++) {
+    for (let g = only < 0 ? 0 : only; g < (only < 0 ? combos : only + 1); g++) {
       for (let i = 0; i < p; i++) {
         const gi = i * w;
         for (let j = i; j < p; j++) a[i * p + j] = totGram[gi + j] - G[gi + j] - m * mu[i] * mu[j];
@@ -224,6 +238,7 @@ export function createRffRidge(cols: readonly Float64Array[], options: RffRidgeO
         let pred = mu[p];
         for (let q = 0; q < p; q++) pred += beta[q] * (feat[o + q] - mu[q]);
         const res = feat[o + p] - pred;
+        if (resid !== null) resid[perm[r]] = res;
         e += res * res;
       }
       sse[g] += e;

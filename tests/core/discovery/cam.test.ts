@@ -7,6 +7,8 @@ import { learn } from '../../../src/core/discovery/learn.js';
 import { createRffRidge } from '../../../src/core/discovery/rff-ridge.js';
 import { makeFrame, type Frame } from '../../../src/core/frame/frame.js';
 import { Rng } from '../../../src/core/random/rng.js';
+import { edgeScores } from '../../../src/core/graph/index.js';
+import { generateDataset } from '../../../src/core/synthetic/index.js';
 
 const cont = (name: string, values: Float64Array) => ({ name, kind: 'continuous' as const, values });
 
@@ -132,6 +134,22 @@ describe('cam learner', () => {
     const frame = makeFrame([cont('x', x), cont('y', y)]);
     const set = await runBootstrap(frame, {}, { learner: 'cam' }, { replicates: 20, seed: 8, threads: 1 });
     expect(edgeProbabilityOf(set, 'x', 'y')).toBeGreaterThanOrEqual(0.9);
+  });
+
+  it('a categorical node enters as indicators: the same graph whatever the order of its level codes', () => {
+    // Random-MLP SCM with two 4-level categorical nodes (x8, x10); the generator's graph is the
+    // outside truth. With codes taken as numbers the learned graph changed with a renumbering
+    // (SHD 5–7 over four codings of this data); as indicators it does not.
+    const ds = generateDataset({ graph: 'er', nodes: 10, expectedEdges: 15, rows: 1000, mechanism: 'mlp', noise: 'gaussian', categoricalShare: 0.2, categoricalLevels: 4 }, 2);
+    const recode = (p: readonly number[]) => ({
+      ...ds.frame,
+      columns: ds.frame.columns.map((c) => (c.kind === 'categorical' ? { ...c, values: Float64Array.from(c.values, (v) => p[v]) } : c)),
+    });
+    const a = learn(recode([0, 1, 2, 3]), {}, { learner: 'cam', seed: 1 });
+    const b = learn(recode([3, 2, 1, 0]), {}, { learner: 'cam', seed: 1 });
+    expect(Array.from(b.graph.adj)).toEqual(Array.from(a.graph.adj));
+    expect(edgeScores(a.graph, ds.graph).shd).toBeLessThanOrEqual(3);
+    expect(a.notes.join(' ')).toMatch(/categorical columns as one indicator per level/);
   });
 
   it('is deterministic given the seed', () => {
