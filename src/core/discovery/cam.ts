@@ -37,6 +37,10 @@ import { createRffRidge, type RffRidge } from './rff-ridge.js';
  * the Markov equivalence class is identified and the direction this learner reports there is
  * arbitrary; use PC or a bootstrap ensemble to see that uncertainty.
  *
+ * Categorical variables enter the regressions as one indicator column per level and are scored by
+ * the held-out cross-entropy of the class probabilities predicted for them (indicatorScore), so
+ * no order of their level codes matters; binary ones are 0/1 columns under the Gaussian score.
+ *
  * Knowledge is hard: forbidden edges (tiers included) are never tried, required edges are in the
  * graph from the start and never removed or reversed, and the order search keeps required edges
  * and tiers in order. Missing cells must be imputed first (learn.ts does; its report says how
@@ -234,7 +238,7 @@ export const cam: Learner<CamOptions> = {
     const binary = frame.columns.filter((c) => c.kind === 'binary').map((c) => c.name);
     const categorical = frame.columns.filter((c) => c.kind === 'categorical').map((c) => c.name);
     if (binary.length > 0) notes.push(`binary columns taken as 0/1 values (the score assumes Gaussian noise): ${binary.join(', ')}`);
-    if (categorical.length > 0) notes.push(`categorical columns as one indicator per level, scored by the log-determinant of their indicators' residual covariance: ${categorical.join(', ')}`);
+    if (categorical.length > 0) notes.push(`categorical columns as one indicator per level, scored by the held-out cross-entropy of the class probabilities their indicators' regressions predict: ${categorical.join(', ')}`);
     return {
       learner: 'cam',
       kind: 'dag',
