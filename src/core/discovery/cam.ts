@@ -37,9 +37,10 @@ import { createRffRidge, type RffRidge } from './rff-ridge.js';
  * the Markov equivalence class is identified and the direction this learner reports there is
  * arbitrary; use PC or a bootstrap ensemble to see that uncertainty.
  *
- * Categorical variables enter the regressions as one indicator column per level and are scored by
- * the held-out cross-entropy of the class probabilities predicted for them (indicatorScore), so
- * no order of their level codes matters; binary ones are 0/1 columns under the Gaussian score.
+ * Discrete variables: a categorical one enters the regressions as one indicator column per level
+ * (so no order of its level codes matters), a binary one as its 0/1 column; as nodes both are
+ * scored by the held-out cross-entropy of the class probabilities predicted for them
+ * (discreteScore), on the scale of the continuous nodes' Gaussian term.
  *
  * Knowledge is hard: forbidden edges (tiers included) are never tried, required edges are in the
  * graph from the start and never removed or reversed, and the order search keeps required edges
@@ -176,13 +177,13 @@ export const cam: Learner<CamOptions> = {
     }
     const reg = createRffRidge(cols, { features: o.features, lengthScales: o.lengthScales, additive: o.additive, penalties: o.penalties, folds: o.folds, penaltyPerGroup: false, copyOf }, rng);
     const cache = new Map<string, number>();
-    const resid = cols.length > d ? new Float64Array(n * Math.max(...colsOf.map((c) => c.length))) : new Float64Array(0);
+    const resid = frame.columns.some((c) => c.kind !== 'continuous') ? new Float64Array(n * Math.max(...colsOf.map((c) => c.length))) : new Float64Array(0);
     const score = (j: number, inputs: readonly number[]): number => {
       const key = `${j}:${inputs.join(',')}`;
       let v = cache.get(key);
       if (v === undefined) {
         const x = inputs.length === 0 || cols.length === d ? inputs : inputs.flatMap((i) => colsOf[i]);
-        v = colsOf[j].length === 1 ? Math.log(Math.max(reg.heldOutMse(colsOf[j][0], x), 1e-12)) : indicatorScore(reg, colsOf[j], scaleOf, codesOf[j], x, n, resid);
+        v = frame.columns[j].kind === 'continuous' ? Math.log(Math.max(reg.heldOutMse(colsOf[j][0], x), 1e-12)) : discreteScore(reg, colsOf[j], scaleOf, codesOf[j], x, n, resid);
         cache.set(key, v);
       }
       return v;
@@ -237,7 +238,7 @@ export const cam: Learner<CamOptions> = {
     if (n < nAll) notes.push(`used ${n} of ${nAll} rows, evenly spaced (maxRows)`);
     const binary = frame.columns.filter((c) => c.kind === 'binary').map((c) => c.name);
     const categorical = frame.columns.filter((c) => c.kind === 'categorical').map((c) => c.name);
-    if (binary.length > 0) notes.push(`binary columns taken as 0/1 values (the score assumes Gaussian noise): ${binary.join(', ')}`);
+    if (binary.length > 0) notes.push(`binary columns as 0/1 inputs, scored by the held-out cross-entropy of their predicted probabilities: ${binary.join(', ')}`);
     if (categorical.length > 0) notes.push(`categorical columns as one indicator per level, scored by the held-out cross-entropy of the class probabilities their indicators' regressions predict: ${categorical.join(', ')}`);
     return {
       learner: 'cam',
@@ -288,29 +289,37 @@ function standardise(w: Float64Array): number {
 }
 
 /**
- * Score of a categorical node with indicator columns `own` given the input columns `x`, on the
- * scale of the continuous nodes' log σ̂² (twice a negative log-likelihood per row, up to a
- * constant): twice the held-out cross-entropy, in nats, of the class probabilities that the
- * indicators' held-out regressions predict (each clipped to [1e-3, 1] and the row renormalised).
- * A mixed sum of these and the continuous nodes' Gaussian terms is the log-likelihood of a
- * mixed density (counting measure for the discrete nodes), so the two directions of an edge
- * between a discrete and a continuous node are compared on one scale. The indicators enter
- * symmetrically, so renumbering the levels does not change the score.
+ * Score of a binary or categorical node given the input columns `x`, on the scale of the
+ * continuous nodes' log σ̂² (twice a negative log-likelihood per row, up to a constant): twice
+ * the held-out cross-entropy, in nats, of the class probabilities that held-out regressions
+ * predict — of the 0/1 column for a binary node (P(1), clipped to [1e-3, 1 − 1e-3]), of each
+ * level's indicator for a categorical one (each clipped to [1e-3, 1], the row renormalised).
+ * A sum of these and the continuous nodes' Gaussian terms is the log-likelihood of a mixed
+ * density (counting measure for the discrete nodes), so both directions of an edge between a
+ * discrete and a continuous node are scored on one scale. A categorical node's indicators enter
+ * symmetrically, so renumbering its levels does not change the score. `own`: the node's columns.
  */
-function indicatorScore(reg: RffRidge, own: readonly number[], scaleOf: readonly number[], raw: Float64Array, x: readonly number[], n: number, resid: Float64Array): number {
+function discreteScore(reg: RffRidge, own: readonly number[], scaleOf: readonly number[], codes: Float64Array, x: readonly number[], n: number, resid: Float64Array): number {
   const k = own.length;
   for (let a = 0; a < k; a++) reg.heldOutMse(own[a], x, resid.subarray(a * n, (a + 1) * n));
+  // The residuals are of standardised columns: prediction = value − residual × scale.
   let loss = 0;
+  if (k === 1) {
+    const s = scaleOf[own[0]];
+    for (let r = 0; r < n; r++) {
+      const p1 = Math.min(1 - 1e-3, Math.max(1e-3, codes[r] - resid[r] * s));
+      loss -= Math.log(codes[r] === 1 ? p1 : 1 - p1);
+    }
+    return (2 * loss) / n;
+  }
   for (let r = 0; r < n; r++) {
-    // Residuals are of standardised indicators: prediction = indicator − residual, rescaled.
     let sum = 0;
     let pTrue = 0;
     for (let a = 0; a < k; a++) {
-      const s = scaleOf[own[a]];
-      const ind = raw[r] === a ? 1 : 0;
-      const pred = Math.min(1, Math.max(1e-3, ind - resid[a * n + r] * s));
-      sum += pred;
-      if (ind === 1) pTrue = pred;
+      const ind = codes[r] === a ? 1 : 0;
+      const p = Math.min(1, Math.max(1e-3, ind - resid[a * n + r] * scaleOf[own[a]]));
+      sum += p;
+      if (ind === 1) pTrue = p;
     }
     loss -= Math.log(pTrue / sum);
   }
