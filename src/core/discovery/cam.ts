@@ -177,12 +177,13 @@ export const cam: Learner<CamOptions> = {
     }
     const reg = createRffRidge(cols, { features: o.features, lengthScales: o.lengthScales, additive: o.additive, penalties: o.penalties, folds: o.folds, penaltyPerGroup: false, copyOf }, rng);
     const cache = new Map<string, number>();
-    const resid = frame.columns.some((c) => c.kind !== 'continuous') ? new Float64Array(n * Math.max(...colsOf.map((c) => c.length))) : new Float64Array(0);
+    // Held-out residuals of a discrete node's columns (discreteScore).
+    const resid = new Float64Array(n * Math.max(...colsOf.map((c) => c.length)));
     const score = (j: number, inputs: readonly number[]): number => {
       const key = `${j}:${inputs.join(',')}`;
       let v = cache.get(key);
       if (v === undefined) {
-        const x = inputs.length === 0 || cols.length === d ? inputs : inputs.flatMap((i) => colsOf[i]);
+        const x = inputs.flatMap((i) => colsOf[i]);
         v = frame.columns[j].kind === 'continuous' ? Math.log(Math.max(reg.heldOutMse(colsOf[j][0], x), 1e-12)) : discreteScore(reg, colsOf[j], scaleOf, codesOf[j], x, n, resid);
         cache.set(key, v);
       }
