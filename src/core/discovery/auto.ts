@@ -2,6 +2,7 @@ import type { Frame } from '../frame/frame.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { Matrix } from '../linalg/matrix.js';
 import { fSf } from '../stats/f-dist.js';
+import { standardiseInPlace } from '../stats/descriptive.js';
 import { causalOrder } from './direct-lingam.js';
 import { jarqueBera } from './gaussianity.js';
 import { compileKnowledge } from './knowledge.js';
@@ -169,7 +170,7 @@ function diagnose(frame: Frame, cont: readonly number[]): { nonlinear: number; n
     const v = frame.columns[j].values;
     const w = new Float64Array(m);
     for (let r = 0; r < m; r++) w[r] = v[rows[r]];
-    standardise(w);
+    standardiseInPlace(w);
     z.push(w);
   }
   // Indicators of the discrete columns on the chosen rows (column-major), at most maxIndicators.
@@ -237,16 +238,3 @@ function diagnose(frame: Frame, cont: readonly number[]): { nonlinear: number; n
   return { nonlinear, nonGaussian, diagnosed };
 }
 
-function standardise(w: Float64Array): void {
-  const m = w.length;
-  let mu = 0;
-  for (let r = 0; r < m; r++) mu += w[r];
-  mu /= m;
-  let s = 0;
-  for (let r = 0; r < m; r++) {
-    w[r] -= mu;
-    s += w[r] * w[r];
-  }
-  const inv = s > 0 ? 1 / Math.sqrt(s / m) : 0;
-  for (let r = 0; r < m; r++) w[r] *= inv;
-}

@@ -1,5 +1,6 @@
 import type { Frame } from '../frame/frame.js';
 import type { Rng } from '../random/rng.js';
+import { standardiseInPlace } from '../stats/descriptive.js';
 import { searchOrder } from './cam-order.js';
 import { pruneParents } from './cam-prune.js';
 import { searchDag } from './cam-search.js';
@@ -164,7 +165,7 @@ export const cam: Learner<CamOptions> = {
       for (let k = 0; k < Math.max(1, levels); k++) {
         own.push(cols.length);
         const col = levels > 0 ? Float64Array.from(w, (v) => (v === k ? 1 : 0)) : Float64Array.from(w);
-        scaleOf.push(standardise(col));
+        scaleOf.push(standardiseInPlace(col));
         cols.push(col);
       }
       colsOf.push(own);
@@ -274,19 +275,6 @@ function tieredTopologicalOrder(adj: Uint8Array, d: number, knowledge: CompiledK
     for (let v = 0; v < d; v++) if (adj[pick * d + v] === 1) indeg[v]--;
   }
   return order;
-}
-
-/** Replaces w by (w − mean) / sd (by 0 when constant); returns the sd. */
-function standardise(w: Float64Array): number {
-  const n = w.length;
-  let mu = 0;
-  for (let r = 0; r < n; r++) mu += w[r];
-  mu /= n;
-  let ss = 0;
-  for (let r = 0; r < n; r++) ss += (w[r] - mu) ** 2;
-  const inv = ss > 0 ? 1 / Math.sqrt(ss / n) : 0;
-  for (let r = 0; r < n; r++) w[r] = (w[r] - mu) * inv;
-  return Math.sqrt(ss / n);
 }
 
 /**

@@ -2,6 +2,7 @@ import type { ColumnKind, Frame } from '../frame/frame.js';
 import { lstsq } from '../linalg/lstsq.js';
 import type { Matrix } from '../linalg/matrix.js';
 import type { Rng } from '../random/rng.js';
+import { standardiseInPlace } from '../stats/descriptive.js';
 import { adaptiveLassoSelect } from './adaptive-lasso.js';
 import type { CompiledKnowledge } from './knowledge.js';
 import type { Learner, LearnResult } from './learner.js';
@@ -233,22 +234,6 @@ function markCandidates(candidate: Uint8Array, remaining: Uint8Array, k: Compile
 /** True when the knowledge puts i before j: a required edge i→j, or i in an earlier tier. */
 function precedes(k: CompiledKnowledge, i: number, j: number, d: number): boolean {
   return k.required[i * d + j] === 1 || (k.tierOf[i] >= 0 && k.tierOf[j] >= 0 && k.tierOf[i] < k.tierOf[j]);
-}
-
-/** Centres and scales to unit variance in place (a constant column becomes all zeros). */
-function standardiseInPlace(v: Float64Array): void {
-  const n = v.length;
-  let m = 0;
-  for (let r = 0; r < n; r++) m += v[r];
-  m /= n;
-  let s = 0;
-  for (let r = 0; r < n; r++) {
-    v[r] -= m;
-    s += v[r] * v[r];
-  }
-  const sd = Math.sqrt(s / n);
-  const inv = sd > 1e-12 ? 1 / sd : 0;
-  for (let r = 0; r < n; r++) v[r] *= inv;
 }
 
 /** log cosh u, stable for large |u|. */

@@ -44,3 +44,23 @@ export function quantile(sorted: ArrayLike<number>, p: number): number {
   const f = h - lo;
   return f === 0 ? sorted[lo] : sorted[lo] + f * (sorted[lo + 1] - sorted[lo]);
 }
+
+/**
+ * Centres v and scales it to unit population variance, in place; returns the standard
+ * deviation it divided by. A (numerically) constant column, sd ≤ 1e-12, becomes all zeros.
+ */
+export function standardiseInPlace(v: Float64Array): number {
+  const n = v.length;
+  let m = 0;
+  for (let r = 0; r < n; r++) m += v[r];
+  m /= n;
+  let s = 0;
+  for (let r = 0; r < n; r++) {
+    v[r] -= m;
+    s += v[r] * v[r];
+  }
+  const sd = Math.sqrt(s / n);
+  const inv = sd > 1e-12 ? 1 / sd : 0;
+  for (let r = 0; r < n; r++) v[r] *= inv;
+  return sd;
+}

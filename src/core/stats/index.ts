@@ -8,5 +8,5 @@ export { fisherZTest, fisherZStatistic } from './fisher-z.js';
 export { likelihoodRatioTest } from './likelihood-ratio.js';
 export { logisticRegression, softplus, type LogisticOptions, type LogisticResult } from './logistic-regression.js';
 export { softmaxRegression, type SoftmaxOptions, type SoftmaxResult } from './softmax-regression.js';
-export { mean, variance, standardDeviation, quantile } from './descriptive.js';
+export { mean, variance, standardDeviation, standardiseInPlace, quantile } from './descriptive.js';
 export { distanceCorrelation, distanceCorrelationTest } from './distance-correlation.js';

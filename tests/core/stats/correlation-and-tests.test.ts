@@ -5,6 +5,7 @@ import { Matrix as MlMatrix, correlation as mlCorrelation, inverse as mlInverse 
 import MLR from 'ml-regression-multivariate-linear';
 import { Rng } from '../../../src/core/random/rng.js';
 import { type Matrix, zeros, toRows } from '../../../src/core/linalg/index.js';
+import { standardiseInPlace } from '../../../src/core/stats/descriptive.js';
 import {
   correlationMatrix,
   partialCorrelation,
@@ -129,5 +130,21 @@ describe('descriptive statistics', () => {
     for (const p of [0, 0.025, 0.1, 0.5, 0.77, 0.975, 1]) expect(quantile(sorted, p)).toBeCloseTo(math.quantileSeq(x, p) as number, 10);
     expect(quantile([1, 2, 3, 4], 0.5)).toBe(2.5);
     expect(Number.isNaN(quantile([], 0.5))).toBe(true);
+  });
+});
+
+describe('standardiseInPlace', () => {
+  it('gives the z-scores of jstat (mean, population sd) and returns that sd; a constant column becomes zeros', () => {
+    const rng = Rng.create(17);
+    const raw = Array.from({ length: 200 }, () => 3 + 2 * rng.normal());
+    const v = Float64Array.from(raw);
+    const sd = standardiseInPlace(v);
+    const m = jStat.mean(raw);
+    const s = jStat.stdev(raw, false);
+    expect(sd).toBeCloseTo(s, 12);
+    for (let i = 0; i < raw.length; i++) expect(v[i]).toBeCloseTo((raw[i] - m) / s, 12);
+    const c = new Float64Array(5).fill(7);
+    expect(standardiseInPlace(c)).toBe(0);
+    expect(Array.from(c)).toEqual([0, 0, 0, 0, 0]);
   });
 });
