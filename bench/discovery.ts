@@ -254,12 +254,11 @@ interface Speed {
   note?: string;
 }
 const speed: Speed[] = [];
-const nonlinear = nonlinearLearner;
 if (!only || only.includes('speed')) {
-  if (nonlinear) {
+  if (nonlinearLearner) {
     const ds = generateDataset(configs[0].data, 77);
-    const { seconds, cpu } = runOne(nonlinear, ds.frame, 1);
-    speed.push({ run: 'one nonlinear replicate, d=20, n=2000', learner: nonlinear, seconds, cpu_seconds: cpu, limit: 60 });
+    const { seconds, cpu } = runOne(nonlinearLearner, ds.frame, 1);
+    speed.push({ run: 'one nonlinear replicate, d=20, n=2000', learner: nonlinearLearner, seconds, cpu_seconds: cpu, limit: 60 });
     log(JSON.stringify(speed[speed.length - 1]));
   }
   if (available.has('linear-notears')) {
@@ -272,11 +271,11 @@ if (!only || only.includes('speed')) {
 }
 // The 20-replicate ensemble is its own part ('ensemble'): on a busy machine it can take long, so
 // it logs each finished replicate, and on SIGTERM/SIGINT it records how far it got and stops.
-if (nonlinear && !quick && (!only || only.includes('ensemble'))) {
+if (nonlinearLearner && !quick && (!only || only.includes('ensemble'))) {
   const ds = generateDataset(configs[0].data, 79);
   const t0 = performance.now();
   const c0 = cpuSeconds();
-  const partial: Speed = { run: '20-replicate nonlinear ensemble, d=20, n=2000, 2 threads', learner: nonlinear, seconds: NaN, cpu_seconds: NaN, limit: 600, note: 'not finished: 0 of 20 replicates' };
+  const partial: Speed = { run: '20-replicate nonlinear ensemble, d=20, n=2000, 2 threads', learner: nonlinearLearner, seconds: NaN, cpu_seconds: NaN, limit: 600, note: 'not finished: 0 of 20 replicates' };
   speed.push(partial);
   const stop = (): void => {
     partial.seconds = (performance.now() - t0) / 1000;
@@ -287,7 +286,7 @@ if (nonlinear && !quick && (!only || only.includes('ensemble'))) {
   };
   process.once('SIGTERM', stop);
   process.once('SIGINT', stop);
-  const set = await runBootstrap(ds.frame, {}, { learner: nonlinear as 'cam' }, {
+  const set = await runBootstrap(ds.frame, {}, { learner: nonlinearLearner as 'cam' }, {
     replicates: 20,
     seed: 1,
     threads: 2,

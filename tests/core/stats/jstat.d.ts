@@ -14,6 +14,7 @@ declare module 'jstat' {
     lowRegGamma(a: number, x: number): number;
     quantiles(arr: number[], p: number[]): number[];
     variance(arr: number[], flag?: boolean): number;
+    stdev(arr: number[], flag?: boolean): number;
     mean(arr: number[]): number;
   }
   const jStat: JStat;
