@@ -22,6 +22,7 @@ import { generateDataset, type SyntheticConfig } from '../src/core/synthetic/ind
 import { r2SortRegress } from './baselines/r2-sort-regress.js';
 import { Rng } from '../src/core/random/rng.js';
 import { distanceCorrelationTest } from '../src/core/stats/distance-correlation.js';
+import { anmDirection } from '../src/core/discovery/anm-direction.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const quick = process.argv.includes('--quick');
@@ -162,6 +163,14 @@ interface Visibility {
   edges: Array<{ edge: string; dcor: number; p: number }>;
 }
 let sachsVisibility: Visibility | undefined;
+/** Where the Sachs orientations come from: the ensemble's edges and a pairwise direction test. */
+interface Orientation {
+  /** Adjacencies in at least half the replicates, in their more frequent direction. */
+  ensemble: Array<{ edge: string; p_adjacent: number; p_direction: number; verdict: 'consensus' | 'reversed' | 'not in consensus' }>;
+  /** Pairwise additive-noise direction (HSIC of residual vs regressor) on each visible consensus edge. */
+  anm: Array<{ edge: string; agrees: boolean; hsic_forward: number; hsic_backward: number }>;
+}
+let sachsOrientation: Orientation | undefined;
 // The nonlinear learner `auto` picks for nonlinear data (auto.ts): cam, else mlp-notears.
 const nonlinearLearner = available.has('cam') ? 'cam' : available.has('mlp-notears') ? 'mlp-notears' : null;
 if (!only || only.includes('sachs')) {
@@ -208,6 +217,21 @@ if (!only || only.includes('sachs')) {
     records.push(rec);
     sachs[learner] = { shd: sc.shd, edges: rec.edges as number };
     log(`sachs ${learner}: ${JSON.stringify(rec)}`);
+    const truthSet = new Set(truthEdges.map(([a, b]) => `${a}→${b}`));
+    const d = names.length;
+    const p = set.edgeProbability;
+    const ensemble: Orientation['ensemble'] = [];
+    for (let i = 0; i < d; i++) {
+      for (let j = i + 1; j < d; j++) {
+        const adj = p[i * d + j] + p[j * d + i];
+        if (adj < 0.5) continue;
+        const [a, b, pd] = p[i * d + j] >= p[j * d + i] ? [names[i], names[j], p[i * d + j]] : [names[j], names[i], p[j * d + i]];
+        const verdict = truthSet.has(`${a}→${b}`) ? 'consensus' : truthSet.has(`${b}→${a}`) ? 'reversed' : 'not in consensus';
+        ensemble.push({ edge: `${a}→${b}`, p_adjacent: +adj.toFixed(3), p_direction: +pd.toFixed(3), verdict });
+      }
+    }
+    ensemble.sort((x, y) => y.p_adjacent - x.p_adjacent || y.p_direction - x.p_direction);
+    sachsOrientation = { ensemble, anm: [] };
   }
   // How many consensus edges the data show at all: a distance-correlation permutation test
   // (Székely, Rizzo & Bakirov 2007) finds linear and nonlinear dependence alike. A learner
@@ -219,6 +243,14 @@ if (!only || only.includes('sachs')) {
   const visible = tests.filter((t) => t.p <= 0.01);
   sachsVisibility = { alpha: 0.01, permutations: 199, visible: visible.length, shd_floor: truthEdges.length - visible.length, edges: tests.map((t) => ({ edge: t.edge, dcor: +t.dcor.toFixed(3), p: +t.p.toFixed(3) })) };
   log(`sachs visibility: ${visible.length} of ${truthEdges.length} consensus edges show dependence (p ≤ 0.01)`);
+  // A second, model-free opinion on the directions of the visible edges: the pairwise
+  // additive-noise-model test (Hoyer et al. 2009; anm-direction.ts), on the log values.
+  const anm = visible.map((t) => {
+    const [a, b] = t.edge.split('→');
+    const r = anmDirection(col(a), col(b));
+    return { edge: t.edge, agrees: r.direction === 'forward', hsic_forward: +r.hsicForward.toExponential(3), hsic_backward: +r.hsicBackward.toExponential(3) };
+  });
+  sachsOrientation = { ensemble: sachsOrientation?.ensemble ?? [], anm };
 }
 
 /** Edges with probability (either direction) ≥ 0.5, each in its more frequent direction. */
@@ -321,6 +353,7 @@ interface Results {
   records: Record[];
   sachs: { [learner: string]: { shd: number; edges: number } };
   sachs_visibility?: Visibility;
+  sachs_orientation?: Orientation;
   speed: Speed[];
 }
 
@@ -328,7 +361,7 @@ interface Results {
 // what this run measured, so the full benchmark can be run in parts on a busy machine.
 const outFile = join(here, 'results', 'discovery.json');
 const run: Run = { generated: new Date().toISOString(), only, load_start: loadBefore, load_end: loadAfter };
-let results: Results = { quick, seeds, runs: [run], records, sachs, sachs_visibility: sachsVisibility, speed };
+let results: Results = { quick, seeds, runs: [run], records, sachs, sachs_visibility: sachsVisibility, sachs_orientation: sachsOrientation, speed };
 if (only) {
   try {
     const prev = JSON.parse(readFileSync(outFile, 'utf8')) as Results;
@@ -341,6 +374,7 @@ if (only) {
         records: [...prev.records.filter((r) => !ran.has(r.config)), ...records],
         sachs: only.includes('sachs') ? sachs : prev.sachs,
         sachs_visibility: only.includes('sachs') ? sachsVisibility : prev.sachs_visibility,
+        sachs_orientation: only.includes('sachs') ? sachsOrientation : prev.sachs_orientation,
         speed: [...prev.speed.filter((p) => !speed.some((q) => q.run === p.run)), ...speed],
       };
     }
@@ -373,6 +407,24 @@ if (vis) {
   lines.push(
     `Sachs consensus edges whose endpoints show any dependence in these 853 rows (distance-correlation permutation test, ${vis.permutations} permutations, p ≤ ${vis.alpha}): ${vis.visible} of ${vis.visible + vis.shd_floor} — so a learner whose edges rest on dependence scores SHD ≥ ${vis.shd_floor}. Not visible: ${vis.edges.filter((e) => e.p > vis.alpha).map((e) => `${e.edge} (dCor ${e.dcor.toFixed(2)}, p ${e.p.toFixed(2)})`).join(', ')}.`,
   );
+}
+const ori = results.sachs_orientation;
+if (ori) {
+  if (ori.ensemble.length) {
+    lines.push('');
+    lines.push(`Sachs, the ${nonlinearLearner ?? 'nonlinear'} ensemble's adjacencies (in at least half of 20 replicates), each in its more frequent direction, against the consensus:`);
+    lines.push('');
+    lines.push('| edge | P(adjacent) | P(this direction) | consensus |');
+    lines.push('| --- | ---: | ---: | --- |');
+    for (const e of ori.ensemble) lines.push(`| ${e.edge} | ${e.p_adjacent.toFixed(2)} | ${e.p_direction.toFixed(2)} | ${e.verdict} |`);
+  }
+  if (ori.anm.length) {
+    const agree = ori.anm.filter((e) => e.agrees);
+    lines.push('');
+    lines.push(
+      `Pairwise additive-noise direction test (anm-direction.ts, Hoyer et al. 2009) on the ${ori.anm.length} visible consensus edges: agrees with the consensus on ${agree.length} (${agree.map((e) => e.edge).join(', ')}); prefers the reverse of ${ori.anm.filter((e) => !e.agrees).map((e) => e.edge).join(', ')}.`,
+    );
+  }
 }
 if (results.speed.length) {
   lines.push('');
