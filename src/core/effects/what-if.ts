@@ -27,30 +27,19 @@
  * weighted central quantiles; the per-graph breakdown does the same within each graph.
  */
 import type { Rng } from '../random/rng.js';
-import {
-  abductRows,
-  encodeRows,
-  levelProbability,
-  MAX_POSTED_ROWS,
-  outcomeIntervals,
-  type PostedRows,
-  type PostedValue,
-  processMask,
-  type RowsWorkspace,
-  rowsWorkspace,
-  sliceRows,
-} from '../scm/abduct-rows.js';
+import { encodeRows, MAX_POSTED_ROWS, type PostedValue, processMask, rowsWorkspace, sliceRows } from '../scm/abduct-rows.js';
 import type { CompiledModel } from '../scm/compiled-model.js';
 import { KIND_CATEGORICAL, KIND_CONTINUOUS } from '../scm/compiled-model.js';
 import type { InterventionValue } from '../scm/intervention.js';
-import { conditionHolds, InterventionError, valueCode, variableIndexOf } from '../scm/intervention.js';
-import { applyNoise, mechanismOutput } from '../scm/kernel.js';
+import { InterventionError, valueCode, variableIndexOf } from '../scm/intervention.js';
 import { QueryRefusalError } from '../scm/query-refusal.js';
 import { descendantMask, pathProbability } from '../scm/model-access.js';
-import type { Arm, ResolvedArm } from './arms.js';
-import { ARM_OBSERVE, ARM_POLICY, ARM_SCALE, ARM_SET, ARM_SHIFT, armKey, resolveArm } from './arms.js';
+import { weightedSummary } from '../stats/weighted-quantile.js';
+import type { Arm } from './arms.js';
+import { armKey, resolveArm } from './arms.js';
 import { queryCautions } from './cautions.js';
 import { affectedNodes } from './counterfactual.js';
+import { type SimState, simulateChunk } from './what-if-simulate.js';
 
 export { MAX_POSTED_ROWS };
 
@@ -292,7 +281,7 @@ export function whatIf(
       const wg = model.graphWeights[g];
       if (!(wg > 0)) continue;
       const o = poolStart[r] + graphOff[g * n + r];
-      summarise(vals, off + o, weight, o, drawsOf[g * n + r], level, keys, kw, res);
+      weightedSummary(vals, off + o, weight, o, drawsOf[g * n + r], level, keys, kw, res);
       out.push({ graph: g, weight: wg, causalPath: causal[g] === 1, estimate: res[0], lower: res[1], upper: res[2] });
     }
     return out;
@@ -302,14 +291,14 @@ export function whatIf(
     const len = poolStart[r + 1] - s0;
     const predictions: WhatIfPrediction[] = [];
     for (let a = 0; a < A; a++) {
-      summarise(outcome, a * pool + s0, weight, s0, len, level, keys, kw, res);
+      weightedSummary(outcome, a * pool + s0, weight, s0, len, level, keys, kw, res);
       predictions.push({ arm: labels[a], estimate: res[0], lower: res[1], upper: res[2], perGraph: parts(outcome, a * pool, r) });
     }
     const effects: WhatIfEffect[] = [];
     for (let a = 0; a < A; a++) {
       if (a === ref) continue;
       for (let k = s0; k < s0 + len; k++) diff[k] = outcome[a * pool + k] - outcome[ref * pool + k];
-      summarise(diff, s0, weight, s0, len, level, keys, kw, res);
+      weightedSummary(diff, s0, weight, s0, len, level, keys, kw, res);
       effects.push({ arm: labels[a], reference: labels[ref], estimate: res[0], lower: res[1], upper: res[2], perGraph: parts(diff, 0, r) });
     }
     const used: string[] = [];
@@ -352,111 +341,6 @@ export function whatIf(
   };
 }
 
-/** Buffers and pooled results shared by the chunks of one call. */
-interface SimState {
-  /** A × pool outcome per arm and pooled unit. */
-  readonly outcome: Float64Array;
-  /** Pooled weight per unit: w_g × the normalised likelihood weight within (row, graph). */
-  readonly weight: Float64Array;
-  readonly ess: Float64Array;
-  readonly essShare: Float64Array;
-  readonly ws: RowsWorkspace;
-  readonly work: Float64Array;
-  readonly yLo: Float64Array;
-  readonly yHi: Float64Array;
-  readonly pool: number;
-  readonly poolStart: Int32Array;
-  readonly graphOff: Int32Array;
-}
-
-/** Rows r0.. of `posted` (n rows in all) in graph g: abduct, weight, run every arm, write into the pool. */
-function simulateChunk(
-  model: CompiledModel,
-  g: number,
-  posted: PostedRows,
-  r0: number,
-  n: number,
-  process: Uint8Array,
-  aff: Int32Array,
-  causal: boolean,
-  draws: Int32Array,
-  arms: readonly ResolvedArm[],
-  t: number,
-  y: number,
-  lv: number,
-  rng: Rng,
-  sim: SimState,
-): void {
-  const p = model.p;
-  const wg = model.graphWeights[g];
-  const ws = sim.ws;
-  const units = abductRows(model, g, posted, process, draws, rng, ws);
-  const N = units.n;
-  const V = units.values;
-  const rs = units.rowStart;
-  const nr = posted.n;
-  const yMech = model.mechanismOf[g * p + y];
-  if (lv >= 0) outcomeIntervals(model, g, y, posted, process, V, units.noise, rs, N, ws.scratch, ws.mean, sim.yLo, sim.yHi);
-  // Likelihood weights, normalised within (row, graph) to sum to w_g.
-  for (let r = 0; r < nr; r++) {
-    const d = rs[r + 1] - rs[r];
-    const R = r0 + r;
-    const base = sim.poolStart[R] + sim.graphOff[g * n + R] - rs[r];
-    let mx = -Infinity;
-    let mn = Infinity;
-    for (let u = rs[r]; u < rs[r + 1]; u++) {
-      const l = units.logWeight[u];
-      if (l > mx) mx = l;
-      if (l < mn) mn = l;
-    }
-    if (mx === mn) {
-      // Nothing weights the draws (no given value depends on a drawn one): equal weights.
-      for (let u = rs[r]; u < rs[r + 1]; u++) sim.weight[base + u] = wg / d;
-      if (d > 1 && d < sim.ess[R]) sim.ess[R] = d;
-      continue;
-    }
-    let s = 0;
-    let s2 = 0;
-    for (let u = rs[r]; u < rs[r + 1]; u++) {
-      const e = Math.exp(units.logWeight[u] - mx);
-      ws.tmp[u] = e;
-      s += e;
-      s2 += e * e;
-    }
-    const e = (s * s) / s2;
-    if (e < sim.ess[R]) sim.ess[R] = e;
-    if (e / d < sim.essShare[R]) sim.essShare[R] = e / d;
-    for (let u = rs[r]; u < rs[r + 1]; u++) sim.weight[base + u] = (wg * ws.tmp[u]) / s;
-  }
-  const work = sim.work;
-  work.set(V.subarray(0, p * N));
-  for (let a = 0; a < arms.length; a++) {
-    applyArm(model, arms[a], t, V, work, N);
-    for (let k = 0; k < aff.length; k++) {
-      const j = aff[k];
-      if (j === y) continue;
-      mechanismOutput(model, model.mechanismOf[g * p + j], work, N, ws.scratch, ws.mean);
-      applyNoise(model, j, ws.mean, units.noise, j * N, N, work, j * N);
-    }
-    const out = ws.tmp;
-    if (lv < 0) {
-      if (causal) {
-        mechanismOutput(model, yMech, work, N, ws.scratch, ws.mean);
-        for (let u = 0; u < N; u++) out[u] = ws.mean[u] + units.noise[y * N + u];
-      } else for (let u = 0; u < N; u++) out[u] = V[y * N + u];
-    } else {
-      mechanismOutput(model, yMech, work, N, ws.scratch, ws.mean);
-      levelProbability(model, y, lv, ws.mean, sim.yLo, sim.yHi, N, out);
-    }
-    for (let r = 0; r < nr; r++) {
-      const base = a * sim.pool + sim.poolStart[r0 + r] + sim.graphOff[g * n + r0 + r] - rs[r];
-      for (let u = rs[r]; u < rs[r + 1]; u++) sim.outcome[base + u] = out[u];
-    }
-    for (let k = 0; k < aff.length; k++) work.set(V.subarray(aff[k] * N, (aff[k] + 1) * N), aff[k] * N);
-    work.set(V.subarray(t * N, (t + 1) * N), t * N);
-  }
-}
-
 function outcomeCode(model: CompiledModel, y: number, outcomeLevel: InterventionValue | undefined): number {
   if (outcomeLevel === undefined) {
     if (model.kinds[y] === KIND_CATEGORICAL) {
@@ -465,129 +349,4 @@ function outcomeCode(model: CompiledModel, y: number, outcomeLevel: Intervention
     return 1;
   }
   return valueCode(model, y, outcomeLevel);
-}
-
-/** The treatment column of `work` under one arm (from the factual values V). */
-function applyArm(model: CompiledModel, arm: ResolvedArm, t: number, V: Float64Array, work: Float64Array, N: number): void {
-  const c = t * N;
-  switch (arm.action) {
-    case ARM_OBSERVE:
-      return;
-    case ARM_SET:
-      work.fill(arm.amount, c, c + N);
-      return;
-    case ARM_SHIFT:
-      for (let u = 0; u < N; u++) work[c + u] = V[c + u] + arm.amount;
-      return;
-    case ARM_SCALE:
-      for (let u = 0; u < N; u++) work[c + u] = V[c + u] * arm.amount;
-      return;
-    case ARM_POLICY:
-      for (let u = 0; u < N; u++) {
-        let val = arm.otherwise;
-        for (const rule of arm.rules) {
-          let ok = true;
-          for (const cond of rule.conditions) if (!conditionHolds(cond, V[cond.variable * N + u])) ok = false;
-          if (ok) {
-            val = rule.value;
-            break;
-          }
-        }
-        work[c + u] = val;
-      }
-      return;
-    default:
-      throw new RangeError(`unknown arm action ${arm.action}`);
-  }
-}
-
-/** Weighted mean and central `level` quantiles of vals[vOff ..+len] (weights w[wOff ..+len]) into res = [estimate, lower, upper]. */
-function summarise(vals: Float64Array, vOff: number, w: Float64Array, wOff: number, len: number, level: number, keys: Float64Array, kw: Float64Array, res: Float64Array): void {
-  let sw = 0;
-  let s = 0;
-  let min = Infinity;
-  let max = -Infinity;
-  for (let k = 0; k < len; k++) {
-    const v = vals[vOff + k];
-    sw += w[wOff + k];
-    s += w[wOff + k] * v;
-    keys[k] = v;
-    kw[k] = w[wOff + k];
-    if (v < min) min = v;
-    if (v > max) max = v;
-  }
-  const estimate = s / sw;
-  // All draws equal up to rounding (a determined answer): a point, without rounding noise in the bounds.
-  if (max - min <= 1e-12 * Math.max(1, Math.abs(estimate))) {
-    const e = Math.min(max, Math.max(min, estimate));
-    res[0] = res[1] = res[2] = e;
-    return;
-  }
-  sortPairs(keys, kw, 0, len - 1);
-  const alpha = (1 - level) / 2;
-  res[0] = estimate;
-  res[1] = weightedQuantile(keys, kw, len, alpha * sw);
-  res[2] = weightedQuantile(keys, kw, len, (1 - alpha) * sw);
-}
-
-/** Smallest sorted key whose cumulative weight reaches `target`. */
-function weightedQuantile(keys: Float64Array, kw: Float64Array, len: number, target: number): number {
-  let c = 0;
-  for (let k = 0; k < len; k++) {
-    c += kw[k];
-    if (c >= target * (1 - 1e-12)) return keys[k];
-  }
-  return keys[len - 1];
-}
-
-/** In-place sort of keys[lo..hi] ascending, carrying the weights along (quicksort, insertion below 16). */
-function sortPairs(keys: Float64Array, kw: Float64Array, lo: number, hi: number): void {
-  while (hi - lo > 16) {
-    const mid = (lo + hi) >>> 1;
-    const pivot = median3(keys[lo], keys[mid], keys[hi]);
-    let i = lo;
-    let j = hi;
-    while (i <= j) {
-      while (keys[i] < pivot) i++;
-      while (keys[j] > pivot) j--;
-      if (i <= j) {
-        swap(keys, kw, i, j);
-        i++;
-        j--;
-      }
-    }
-    // Recurse into the smaller side, loop on the larger (bounded stack).
-    if (j - lo < hi - i) {
-      sortPairs(keys, kw, lo, j);
-      lo = i;
-    } else {
-      sortPairs(keys, kw, i, hi);
-      hi = j;
-    }
-  }
-  for (let i = lo + 1; i <= hi; i++) {
-    const k = keys[i];
-    const w = kw[i];
-    let j = i - 1;
-    while (j >= lo && keys[j] > k) {
-      keys[j + 1] = keys[j];
-      kw[j + 1] = kw[j];
-      j--;
-    }
-    keys[j + 1] = k;
-    kw[j + 1] = w;
-  }
-}
-
-function median3(a: number, b: number, c: number): number {
-  return a < b ? (b < c ? b : a < c ? c : a) : a < c ? a : b < c ? c : b;
-}
-
-function swap(keys: Float64Array, kw: Float64Array, i: number, j: number): void {
-  const k = keys[i];
-  keys[i] = keys[j];
-  keys[j] = k;
-  const w = kw[i];
-  kw[i] = kw[j];
-  kw[j] = w;
 }
