@@ -8,7 +8,7 @@
 import type { CompiledModel } from '../scm/compiled-model.js';
 import { KIND_CONTINUOUS } from '../scm/compiled-model.js';
 import type { InterventionValue, PolicyRule, ResolvedRule } from '../scm/intervention.js';
-import { InterventionError, resolveIntervention, valueCode } from '../scm/intervention.js';
+import { conditionHolds, InterventionError, resolveIntervention, valueCode } from '../scm/intervention.js';
 
 export type Arm =
   | InterventionValue
@@ -75,4 +75,43 @@ export function resolveArm(model: CompiledModel, t: number, arm: Arm): ResolvedA
   const reads = new Set<number>();
   for (const r of pol.rules) for (const c of r.conditions) reads.add(c.variable);
   return { ...base, action: ARM_POLICY, amount: NaN, rules: pol.rules, otherwise: pol.otherwise, reads: [...reads] };
+}
+
+/**
+ * Writes treatment t's column under `arm` into `work` (columns of N units each), from the
+ * factual values `from` (same layout): left as it is for 'observe', set, shifted, scaled, or set
+ * per unit by the policy's first matching rule. The caller checks that a policy reads only
+ * pre-treatment variables.
+ */
+export function armTreatmentColumn(arm: ResolvedArm, t: number, from: Float64Array, work: Float64Array, N: number): void {
+  const c = t * N;
+  switch (arm.action) {
+    case ARM_OBSERVE:
+      return;
+    case ARM_SET:
+      work.fill(arm.amount, c, c + N);
+      return;
+    case ARM_SHIFT:
+      for (let u = 0; u < N; u++) work[c + u] = from[c + u] + arm.amount;
+      return;
+    case ARM_SCALE:
+      for (let u = 0; u < N; u++) work[c + u] = from[c + u] * arm.amount;
+      return;
+    case ARM_POLICY:
+      for (let u = 0; u < N; u++) {
+        let val = arm.otherwise;
+        for (const rule of arm.rules) {
+          let ok = true;
+          for (const cond of rule.conditions) if (!conditionHolds(cond, from[cond.variable * N + u])) ok = false;
+          if (ok) {
+            val = rule.value;
+            break;
+          }
+        }
+        work[c + u] = val;
+      }
+      return;
+    default:
+      throw new RangeError(`unknown arm action ${arm.action}`);
+  }
 }

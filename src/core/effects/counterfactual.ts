@@ -23,12 +23,11 @@
  */
 import type { CompiledModel } from '../scm/compiled-model.js';
 import { KIND_CATEGORICAL, KIND_CONTINUOUS, MECH_HIDDEN, MECH_PARENT_COUNT, MECH_PARENT_OFFSET, MECH_STRIDE } from '../scm/compiled-model.js';
-import { conditionHolds, InterventionError } from '../scm/intervention.js';
+import { InterventionError } from '../scm/intervention.js';
 import { applyNoise, kernelWidths, mechanismOutput } from '../scm/kernel.js';
 import { fixedPreactivation, isAdditiveMlp, mlpOutputRows, PARENT_CONSTANT, PARENT_FIXED, PARENT_VARYING } from '../scm/mlp-row-kernel.js';
 import { ancestorMask, descendantMask } from '../scm/model-access.js';
-import type { ResolvedArm } from './arms.js';
-import { ARM_OBSERVE, ARM_POLICY, ARM_SCALE, ARM_SET, ARM_SHIFT } from './arms.js';
+import { armTreatmentColumn, type ResolvedArm } from './arms.js';
 
 /** Scratch buffers reused across graphs and arms of one query. */
 export interface SimulationScratch {
@@ -138,44 +137,13 @@ export function simulateArms(
   for (let a = 0; a < arms.length; a++) {
     const armMemo = memo ? memo[a] : null;
     const arm = arms[a];
-    // Treatment column.
-    switch (arm.action) {
-      case ARM_OBSERVE:
-        break;
-      case ARM_SET:
-        work.fill(arm.amount, tOff, tOff + R);
-        break;
-      case ARM_SHIFT:
-        for (let r = 0; r < R; r++) work[tOff + r] = ref[tOff + r] + arm.amount;
-        break;
-      case ARM_SCALE:
-        for (let r = 0; r < R; r++) work[tOff + r] = ref[tOff + r] * arm.amount;
-        break;
-      case ARM_POLICY: {
-        for (const v of arm.reads) {
-          if (de[v] === 1 || v === t) {
-            throw new InterventionError(
-              `policy for "${model.names[t]}" reads "${model.names[v]}", a descendant of the treatment in graph ${g}; rules may only read pre-treatment variables`,
-            );
-          }
-        }
-        for (let r = 0; r < R; r++) {
-          let val = arm.otherwise;
-          for (const rule of arm.rules) {
-            let ok = true;
-            for (const c of rule.conditions) if (!conditionHolds(c, ref[c.variable * R + r])) (ok = false);
-            if (ok) {
-              val = rule.value;
-              break;
-            }
-          }
-          work[tOff + r] = val;
-        }
-        break;
+    // Treatment column; a policy may read only pre-treatment variables (other arms read none).
+    for (const v of arm.reads) {
+      if (de[v] === 1 || v === t) {
+        throw new InterventionError(`policy for "${model.names[t]}" reads "${model.names[v]}", a descendant of the treatment in graph ${g}; rules may only read pre-treatment variables`);
       }
-      default:
-        throw new RangeError(`unknown arm action ${arm.action}`);
     }
+    armTreatmentColumn(arm, t, ref, work, R);
     if (changedRowsOnly && yKind === KIND_CONTINUOUS && simulateChangedRows(model, g, t, y, yAffected, affected, sig, scratch, out, a * R, armMemo)) {
       work.set(ref.subarray(tOff, tOff + R), tOff);
       continue;

@@ -7,10 +7,8 @@
 import type { Rng } from '../random/rng.js';
 import { abductRows, levelProbability, outcomeIntervals, type PostedRows, type RowsWorkspace } from '../scm/abduct-rows.js';
 import type { CompiledModel } from '../scm/compiled-model.js';
-import { conditionHolds } from '../scm/intervention.js';
 import { applyNoise, mechanismOutput } from '../scm/kernel.js';
-import type { ResolvedArm } from './arms.js';
-import { ARM_OBSERVE, ARM_POLICY, ARM_SCALE, ARM_SET, ARM_SHIFT } from './arms.js';
+import { armTreatmentColumn, type ResolvedArm } from './arms.js';
 
 /** Buffers and pooled results shared by the chunks of one call. */
 export interface SimState {
@@ -91,7 +89,7 @@ export function simulateChunk(
   const work = sim.work;
   work.set(V.subarray(0, p * N));
   for (let a = 0; a < arms.length; a++) {
-    applyArm(model, arms[a], t, V, work, N);
+    armTreatmentColumn(arms[a], t, V, work, N);
     for (let k = 0; k < aff.length; k++) {
       const j = aff[k];
       if (j === y) continue;
@@ -116,38 +114,3 @@ export function simulateChunk(
     work.set(V.subarray(t * N, (t + 1) * N), t * N);
   }
 }
-
-/** The treatment column of `work` under one arm (from the factual values V). */
-function applyArm(model: CompiledModel, arm: ResolvedArm, t: number, V: Float64Array, work: Float64Array, N: number): void {
-  const c = t * N;
-  switch (arm.action) {
-    case ARM_OBSERVE:
-      return;
-    case ARM_SET:
-      work.fill(arm.amount, c, c + N);
-      return;
-    case ARM_SHIFT:
-      for (let u = 0; u < N; u++) work[c + u] = V[c + u] + arm.amount;
-      return;
-    case ARM_SCALE:
-      for (let u = 0; u < N; u++) work[c + u] = V[c + u] * arm.amount;
-      return;
-    case ARM_POLICY:
-      for (let u = 0; u < N; u++) {
-        let val = arm.otherwise;
-        for (const rule of arm.rules) {
-          let ok = true;
-          for (const cond of rule.conditions) if (!conditionHolds(cond, V[cond.variable * N + u])) ok = false;
-          if (ok) {
-            val = rule.value;
-            break;
-          }
-        }
-        work[c + u] = val;
-      }
-      return;
-    default:
-      throw new RangeError(`unknown arm action ${arm.action}`);
-  }
-}
-
