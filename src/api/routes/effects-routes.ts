@@ -7,7 +7,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { QueriesService } from '../../app/queries/queries-service.js';
 import type { EffectQuery } from '../../core/effects/ate.js';
 import type { UpliftQuery } from '../../core/effects/uplift.js';
-import { Answer, EffectBody, ModelIdParams, UpliftBody, WhatIfBody } from '../schemas/effects.js';
+import { Answer, EffectBody, ModelIdParams, UpliftBody, versionRef, WhatIfBody } from '../schemas/effects.js';
 import type { WhatIfQuery } from '../../core/effects/what-if.js';
 
 export interface EffectsRouteOptions {
@@ -33,7 +33,7 @@ export const effectsRoutes: FastifyPluginAsyncZod<EffectsRouteOptions> = async (
     },
     async (request) => {
       const { version, ...q } = request.body;
-      return queries.effect(request.principal.workspaceId, request.params.id, q as EffectQuery, version);
+      return queries.effect(request.principal.workspaceId, request.params.id, q as EffectQuery, versionRef(version));
     },
   );
 
@@ -51,7 +51,7 @@ export const effectsRoutes: FastifyPluginAsyncZod<EffectsRouteOptions> = async (
     },
     async (request) => {
       const { version, ...q } = request.body;
-      return queries.uplift(request.principal.workspaceId, request.params.id, q as UpliftQuery, version);
+      return queries.uplift(request.principal.workspaceId, request.params.id, q as UpliftQuery, versionRef(version));
     },
   );
 
@@ -71,7 +71,7 @@ export const effectsRoutes: FastifyPluginAsyncZod<EffectsRouteOptions> = async (
     },
     async (request) => {
       const { version, rows, crossCheck: _unused, ...q } = request.body;
-      return queries.whatIf(request.principal.workspaceId, request.params.id, rows, q as WhatIfQuery, version);
+      return queries.whatIf(request.principal.workspaceId, request.params.id, rows, q as WhatIfQuery, versionRef(version));
     },
   );
 };

@@ -35,7 +35,10 @@ const Common = {
   outcomeLevel: Value.optional().describe('For a categorical outcome: the level whose probability is the outcome.'),
   level: z.number().gt(0).lt(1).optional().describe('Interval level (default 0.9).'),
   crossCheck: z.boolean().optional().describe('Compute the AIPW cross-check per graph (default true).'),
-  version: z.string().max(100).optional().describe('Version number or id to answer from (default: the current version).'),
+  version: z
+    .union([z.number().int().positive(), z.string().min(1).max(100)])
+    .optional()
+    .describe('Version to answer from: its number (3 or "3", as answers report it in model.version), its id, or "current" (the default).'),
 };
 
 export const EffectBody = z
@@ -82,3 +85,6 @@ export const Answer = z.object({
   model: z.object({ id: z.string(), version: z.number(), versionId: z.string() }),
   result: z.unknown(),
 });
+
+/** The `version` of a question as the models service takes it (numbers become their decimal text). */
+export const versionRef = (version: number | string | undefined): string | undefined => (version === undefined ? undefined : String(version));
