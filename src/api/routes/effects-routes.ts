@@ -25,7 +25,7 @@ export const effectsRoutes: FastifyPluginAsyncZod<EffectsRouteOptions> = async (
         tags,
         summary: 'Effect of one arm against a reference on an outcome: ATE, or CATE for a segment',
         description:
-          'Answers carry the estimate with its interval (graph uncertainty and Monte Carlo error), the per-graph breakdown, the AIPW cross-check per graph and disagreements, positivity flags, the probability that a causal path exists, and plain-language cautions.',
+          'Answers carry the estimate with its interval (over the graph set; per graph, the larger of the Monte Carlo and the cross-check sampling error, widened by the gap between simulation and cross-check), the per-graph breakdown, the AIPW cross-check per graph and disagreements, positivity flags, the probability that a causal path exists, and plain-language cautions.',
         params: ModelIdParams,
         body: EffectBody,
         response: { 200: Answer },
