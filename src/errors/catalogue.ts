@@ -76,6 +76,12 @@ export const API_ERRORS = {
     title: 'No file in upload',
     template: 'The multipart request holds no file part; send the CSV as a part named "file".',
   },
+  ERR_REQUEST_MULTIPART_FIELD_AFTER_FILE: {
+    status: 400,
+    title: 'Form field after the file',
+    template:
+      'Form part(s) {parts} came after the file part, so they could not be read before the file was: send the fields name, kinds and schema before the file (with curl, put -F name=… before -F file=@…). Nothing was stored.',
+  },
   ERR_REQUEST_RATE_LIMITED: {
     status: 429,
     title: 'Too many requests',

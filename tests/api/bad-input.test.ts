@@ -24,11 +24,11 @@ function manyRows(bytes: number): string {
   return lines.join('\n') + '\n';
 }
 
-function multipartBody(csv: string, fields: Record<string, string> = {}): { payload: Buffer; contentType: string } {
+function multipartBody(csv: string, fields: Record<string, string> = {}, fieldsAfterFile = false): { payload: Buffer; contentType: string } {
   const boundary = '----fulcrumtestboundary';
-  const parts: string[] = [];
-  for (const [k, v] of Object.entries(fields)) parts.push(`--${boundary}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`);
-  parts.push(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="households.csv"\r\nContent-Type: text/csv\r\n\r\n${csv}\r\n`);
+  const fieldParts = Object.entries(fields).map(([k, v]) => `--${boundary}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`);
+  const file = `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="households.csv"\r\nContent-Type: text/csv\r\n\r\n${csv}\r\n`;
+  const parts = fieldsAfterFile ? [file, ...fieldParts] : [...fieldParts, file];
   parts.push(`--${boundary}--\r\n`);
   return { payload: Buffer.from(parts.join('')), contentType: `multipart/form-data; boundary=${boundary}` };
 }
@@ -143,6 +143,28 @@ describe.each(backends())('bad input on %s', (backend) => {
       status: 400,
       type: 'ERR_DATA_RAGGED_ROW',
       mentions: ['Row 2'],
+    },
+    {
+      name: 'multipart fields after the file (a small body, read in one piece)',
+      request: () => {
+        const mp = multipartBody(HOUSEHOLDS_CSV, { name: 'late', kinds: 'occupants:categorical' }, true);
+        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
+      },
+      status: 400,
+      type: 'ERR_REQUEST_MULTIPART_FIELD_AFTER_FILE',
+      mentions: ['"name", "kinds"', 'before the file'],
+    },
+    {
+      name: 'multipart fields after the file (a larger body, streamed in 1 KiB pieces)',
+      request: () => {
+        const mp = multipartBody(manyRows(UPLOAD_LIMIT / 2), { kinds: 'occupants:categorical' }, true);
+        const pieces: Buffer[] = [];
+        for (let o = 0; o < mp.payload.length; o += 1024) pieces.push(mp.payload.subarray(o, o + 1024));
+        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: Readable.from(pieces) };
+      },
+      status: 400,
+      type: 'ERR_REQUEST_MULTIPART_FIELD_AFTER_FILE',
+      mentions: ['"kinds"'],
     },
     {
       name: 'a multipart kinds field with an unknown kind',

@@ -24,7 +24,7 @@ import {
   MultipartBody,
   UploadQuery,
 } from '../schemas/datasets.js';
-import { checkedName, csvUpload, declarations, mediaTypeOf, UPLOAD_MEDIA_TYPES, withUploadLimit } from './upload-source.js';
+import { checkedName, csvUpload, declarations, mediaTypeOf, refuseTrailingParts, UPLOAD_MEDIA_TYPES, withUploadLimit } from './upload-source.js';
 
 /** Options of the datasets routes. */
 export interface DatasetsRouteOptions {
@@ -90,7 +90,7 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
           const location = f ? 'form' : 'query';
           const name = checkedName(f?.name ?? q.name ?? f?.filename?.replace(/\.[^.]*$/, ''), f?.name ? location : 'query');
           const schema = declarations(f?.kinds ?? q.kinds, f?.schema ?? q.schema, location);
-          return service.createFromCsv({ workspaceId, name, body: upload.body, schema });
+          return service.createFromCsv({ workspaceId, name, body: upload.body, schema, beforeCommit: () => refuseTrailingParts(upload) });
         });
         counted(result, f ? 'multipart' : 'csv');
       } else {

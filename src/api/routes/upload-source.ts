@@ -77,32 +77,61 @@ export interface CsvUpload {
   body: ByteLimit;
   /** Name and declarations from multipart fields (undefined for a text/csv body). */
   fields?: { name?: string; kinds?: string; schema?: string; filename?: string };
+  /**
+   * Multipart only: once the file has been read, the names of the parts that followed it. A
+   * field there came too late to shape the upload (the file streams as it arrives), so the
+   * caller refuses it rather than ignore it — whether the body arrived in one piece or not.
+   */
+  trailing?: () => Promise<string[]>;
 }
 
-const fieldValue = (file: MultipartFile, key: string): string | undefined => {
-  const f = file.fields[key];
-  const one = Array.isArray(f) ? f[0] : f;
-  return one && one.type === 'field' && typeof one.value === 'string' ? one.value : undefined;
-};
-
-/** The CSV stream of a text/csv body or of the multipart part named "file". */
+/** The CSV stream of a text/csv body or of the first file part of a multipart body. */
 export async function csvUpload(request: FastifyRequest, uploadLimit: number): Promise<CsvUpload> {
   if (mediaTypeOf(request) === 'text/csv') {
     return { body: limitBytes(request.body as Readable, uploadLimit) };
   }
   // One byte past the limit reaches the ByteLimit, which then refuses the upload (busboy would
-  // otherwise cut the file at the limit silently).
-  const file = await request.file({ limits: { fileSize: uploadLimit + 1, files: 1, fields: 10, fieldSize: 200_000 } });
-  if (!file) throw apiError('ERR_REQUEST_MULTIPART_NO_FILE');
+  // otherwise cut the file at the limit silently). Parts come in the order they were sent:
+  // the fields before the file, then the file, then (read after it) anything that followed.
+  const parts = request.parts({ limits: { fileSize: uploadLimit + 1, files: 1, fields: 10, fieldSize: 200_000 } })[Symbol.asyncIterator]();
+  const fields: Record<string, string> = {};
+  let file: MultipartFile | undefined;
+  for (;;) {
+    const next = await parts.next();
+    if (next.done) throw apiError('ERR_REQUEST_MULTIPART_NO_FILE');
+    const part = next.value;
+    if (part.type === 'file') {
+      file = part;
+      break;
+    }
+    if (typeof part.value === 'string' && !(part.fieldname in fields)) fields[part.fieldname] = part.value;
+  }
+  const trailing = async (): Promise<string[]> => {
+    const late: string[] = [];
+    try {
+      for (;;) {
+        const next = await parts.next();
+        if (next.done) return late;
+        late.push(next.value.fieldname);
+        if (next.value.type === 'file') next.value.file.resume();
+      }
+    } catch {
+      // A second file (over the one-file limit) or a cut body: still a part after the file.
+      late.push('(a further part)');
+      return late;
+    }
+  };
   return {
     body: limitBytes(file.file, uploadLimit),
-    fields: {
-      name: fieldValue(file, 'name'),
-      kinds: fieldValue(file, 'kinds'),
-      schema: fieldValue(file, 'schema'),
-      filename: file.filename,
-    },
+    fields: { name: fields.name, kinds: fields.kinds, schema: fields.schema, filename: file.filename },
+    trailing,
   };
+}
+
+/** Refuses (400) an upload whose multipart body had parts after the file; call once the file has been read. */
+export async function refuseTrailingParts(upload: CsvUpload): Promise<void> {
+  const late = upload.trailing ? await upload.trailing() : [];
+  if (late.length > 0) throw apiError('ERR_REQUEST_MULTIPART_FIELD_AFTER_FILE', { parts: late.map((n) => JSON.stringify(n)).join(', ') });
 }
 
 /** Run an ingest over a limited stream; a limit overrun reports 413 whatever the consumer made of it. */

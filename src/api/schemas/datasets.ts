@@ -43,7 +43,7 @@ export const AppendBatchJson = z.object({
 export const CsvBody = z.any().describe('CSV text: a header line naming the columns, then one line per row. Empty cells and NA are missing values. Streamed, never buffered.');
 export const MultipartBody = z
   .any()
-  .describe('Form fields "name", "kinds" or "schema" (optional, sent before the file), then the CSV as a file part named "file".');
+  .describe('Form fields "name", "kinds" or "schema" (optional, sent before the file: a field after it answers 400), then the CSV as a file part named "file".');
 
 export const DatasetIdParams = z.object({ id: z.string().min(1).max(100) });
 

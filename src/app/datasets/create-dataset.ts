@@ -24,6 +24,11 @@ export interface CreateDatasetInput {
   source: 'csv' | 'json';
   /** Header first, then data rows. */
   records: AsyncIterable<string[][]>;
+  /**
+   * Runs once every row is loaded, inside the transaction: a throw (say, the upload turned out
+   * malformed after its data) rolls the whole dataset back.
+   */
+  beforeCommit?: () => Promise<void>;
 }
 
 export const MAX_DATASET_NAME = 200;
@@ -74,6 +79,7 @@ export async function createDataset(deps: DatasetsDeps, input: CreateDatasetInpu
       tx,
     );
     if (loaded !== encoder.rows) throw new Error(`bulk load stored ${loaded} rows of ${encoder.rows}`);
+    await input.beforeCommit?.();
     await repo.saveColumns(id, encoder.columns(true), tx);
     const b = { datasetId: id, batch: 1, rowCount: encoder.rows, firstRow: 0, source: input.source, stats: encoder.stats() };
     await repo.insertBatch(b, tx);

@@ -29,9 +29,16 @@ export interface JsonTable {
 export function createDatasetsService(db: Db, options: { limits?: Partial<IngestLimits> } = {}) {
   const deps: DatasetsDeps = { db, repo: createDatasetsRepository(db), limits: { ...DEFAULT_INGEST_LIMITS, ...options.limits } };
   return {
-    /** Create a dataset from a streamed CSV body (header line first). */
-    createFromCsv(input: { workspaceId: string; name: string; body: CsvSource; schema?: SchemaDeclaration }): Promise<IngestResult> {
-      return createDataset(deps, { workspaceId: input.workspaceId, name: input.name, schema: input.schema, source: 'csv', records: csvRecords(input.body) });
+    /** Create a dataset from a streamed CSV body (header line first); `beforeCommit` as in createDataset. */
+    createFromCsv(input: { workspaceId: string; name: string; body: CsvSource; schema?: SchemaDeclaration; beforeCommit?: () => Promise<void> }): Promise<IngestResult> {
+      return createDataset(deps, {
+        workspaceId: input.workspaceId,
+        name: input.name,
+        schema: input.schema,
+        source: 'csv',
+        records: csvRecords(input.body),
+        beforeCommit: input.beforeCommit,
+      });
     },
     /** Create a dataset from JSON `{columns, rows}`. */
     createFromJson(input: { workspaceId: string; name: string; table: JsonTable; schema?: SchemaDeclaration }): Promise<IngestResult> {
