@@ -34,6 +34,7 @@ import { openDb } from '../../src/store/open-db.js';
 import { createWorkspacesRepository } from '../../src/store/workspaces-repository.js';
 import { pgliteTemplate } from './helpers/test-app.js';
 import { resolveQuestion, type ReportData } from '../../src/app/reports/report-data.js';
+import { graphReading } from '../../src/app/models/graph-reading.js';
 import { diffGraphs } from '../../src/app/models/graph-views.js';
 import { crossCheckMix } from '../../src/api/report/effects-section.js';
 import { renderGraphSvg } from '../../src/api/report/graph-svg.js';
@@ -147,6 +148,7 @@ function fixture(names: Names = PLAIN) {
       createdAt: '2026-12-01T12:00:00.000Z',
     },
     graph,
+    reading: graphReading(graph, 'fixed'),
     tiers: spec.knowledge.tiers,
     question,
     questionNote: null,
@@ -245,6 +247,12 @@ describe('report page rendering', () => {
     expect(html).toContain('Compared with version 1');
     expect(html).toMatch(/<strong>Gained:<\/strong> Y → M \(100%\)/);
     expect(html).toContain('0.45 s in total');
+  });
+
+  it('says under the graph how to read its probabilities (here: a given graph, an assumption)', () => {
+    const graphSection = html.slice(html.indexOf('id="graph"'), html.indexOf('</section>', html.indexOf('id="graph"')));
+    expect(graphSection).toContain('Reading the probabilities');
+    expect(graphSection).toContain('given with the model, not learned');
   });
 });
 

@@ -153,6 +153,7 @@ describe.skipIf(!ready)('fit flow on PostgreSQL + Redis + BullMQ worker processe
     const graph = (await get(main.app, `/v1/models/${fixedModel}/versions/current/graph`)).json();
     const edges = new Set(graph.edges.filter((e: { probability: number }) => e.probability === 1).map((e: { from: string; to: string }) => `${e.from}>${e.to}`));
     expect(edges).toEqual(new Set(SCENARIO_TRUE_EDGES.map(([a, b]) => `${a}>${b}`)));
+    expect(graph.reading).toEqual({ cautions: [expect.stringMatching(/given with the model/)], undetermined: [] });
     const dot = await get(main.app, `/v1/models/${fixedModel}/versions/1/graph.dot`);
     expect(dot.statusCode).toBe(200);
     expect(dot.headers['content-type']).toMatch(/text\/vnd\.graphviz/);
@@ -224,6 +225,13 @@ describe.skipIf(!ready)('fit flow on PostgreSQL + Redis + BullMQ worker processe
       expect(ed.probability).toBeLessThanOrEqual(1);
     }
     expect(graph.graphs.length).toBeGreaterThanOrEqual(1);
+    // The reading names the learner's basis for directions, and each open direction is the graph's own pair of edges.
+    expect(graph.reading.cautions[1]).toMatch(/PC orients only/);
+    for (const u of graph.reading.undetermined) {
+      const prob = (a: string, b: string) => graph.edges.find((ed: { from: string; to: string }) => ed.from === a && ed.to === b)?.probability ?? 0;
+      expect(u.split).toEqual([prob(u.between[0], u.between[1]), prob(u.between[1], u.between[0])]);
+      expect(u.split[1]).toBeGreaterThan(u.adjacent / 3);
+    }
     expect((await get(main.app, `/v1/models/${id}/versions/1`)).json().diagnostics.replicates).toBe(3);
     // Tiers orient programme → setpoint_c; the −1.6 °C effect (sd 1.1 noise, 1000 rows) is found.
     const p = graph.edges.find((ed: { from: string; to: string }) => ed.from === 'programme' && ed.to === 'setpoint_c')?.probability ?? 0;

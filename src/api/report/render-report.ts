@@ -85,6 +85,7 @@ function renderGraph(data: ReportData): string {
     `<p>Arrows point from cause to effect. Line width and darkness follow each edge’s probability over the ${nGraphs} graph(s) the fit kept; dashed arrows are below 50%, and arrows at 50% or more show their probability. ` +
     `The treatment has a double border and the tag TREATMENT; the outcome is a rounded pill tagged OUTCOME.${data.tiers ? ' Dotted rules separate the knowledge tiers (earlier tiers cannot be caused by later ones).' : ''} Hover an arrow for its probability.</p>` +
     `<figure class="graph-box">${svg}</figure>` +
+    `<p class="caution-h">Reading the probabilities</p><ul class="cautions">${data.reading.cautions.map((c) => `<li>${esc(c)}</li>`).join('')}</ul>` +
     `<h3>Edges</h3><div class="scroll"><table class="edges"><thead><tr><th scope="col">Cause</th><th scope="col">Effect</th><th scope="col">Probability</th></tr></thead><tbody>${edges}</tbody></table></div>` +
     '</section>'
   );

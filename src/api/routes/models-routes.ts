@@ -4,6 +4,7 @@
  * otherwise. Another workspace's model is "not found" (404), like one that does not exist.
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { versionGraphView } from '../../app/models/graph-reading.js';
 import type { ModelsService } from '../../app/models/models-service.js';
 import type { z } from 'zod';
 import type { JobRow } from '../../store/jobs-repository.js';
@@ -147,7 +148,7 @@ export const modelsRoutes: FastifyPluginAsyncZod<ModelsRouteOptions> = async (ap
     },
     async (request) => {
       const v = await models.version(request.principal.workspaceId, request.params.id, request.params.version);
-      return { model: v.modelId, version: v.number, ...(v.graph as Omit<z.infer<typeof GraphView>, 'model' | 'version'>) };
+      return { model: v.modelId, version: v.number, ...(versionGraphView(v) as Omit<z.infer<typeof GraphView>, 'model' | 'version'>) };
     },
   );
 

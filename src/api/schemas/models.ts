@@ -93,6 +93,12 @@ export const GraphView = z.object({
   nodes: z.array(z.object({ name: z.string(), kind: z.string(), levels: z.array(z.string()).optional() })),
   edges: z.array(z.object({ from: z.string(), to: z.string(), probability: z.number() })),
   graphs: z.array(z.object({ weight: z.number(), count: z.number(), edges: z.array(z.tuple([z.string(), z.string()])) })),
+  reading: z
+    .object({
+      cautions: z.array(z.string()),
+      undetermined: z.array(z.object({ between: z.tuple([z.string(), z.string()]), adjacent: z.number(), split: z.tuple([z.number(), z.number()]) })),
+    })
+    .describe('How to read the probabilities: what they measure, what the directions rest on, and the adjacencies whose direction the data leave open (the less frequent direction holds over a third of the weight).'),
 });
 
 export const DiffView = z.object({

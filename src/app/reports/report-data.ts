@@ -14,6 +14,7 @@ import type { EffectEstimate } from '../../core/effects/ate.js';
 import type { UpliftTable } from '../../core/effects/uplift.js';
 import { FulcrumError } from '../../errors/fulcrum-error.js';
 import type { VersionMeta } from '../../store/models-repository.js';
+import { type GraphReading, versionGraphView } from '../models/graph-reading.js';
 import type { GraphDiff } from '../models/graph-views.js';
 import type { ModelsService } from '../models/models-service.js';
 import type { QueriesService } from '../queries/queries-service.js';
@@ -51,6 +52,8 @@ export interface ReportData {
   model: { id: string; name: string };
   version: VersionMeta;
   graph: VersionGraph;
+  /** How to read the graph's probabilities (models/graph-reading.ts). */
+  reading: GraphReading;
   /** Tiers of the model's knowledge, when it has them. */
   tiers: string[][] | null;
   question: ReportQuestion | null;
@@ -168,7 +171,7 @@ export async function gatherReport(
   const ws = claims.workspaceId;
   const model = await models.get(ws, claims.modelId);
   const version = await models.version(ws, claims.modelId, claims.versionId);
-  const graph = version.graph as VersionGraph;
+  const { reading, ...graph } = versionGraphView(version);
   const spec = (version.spec ?? model.spec) as SpecView;
   const tiers = spec.knowledge?.tiers && spec.knowledge.tiers.length > 0 ? spec.knowledge.tiers.map((t) => [...t]) : null;
   const { question, note } = resolveQuestion(graph, spec, input);
@@ -217,6 +220,7 @@ export async function gatherReport(
     model: { id: model.id, name: model.name },
     version,
     graph,
+    reading,
     tiers,
     question,
     questionNote: note,
