@@ -29,11 +29,13 @@ export interface GraphReading {
  */
 export const OPEN_DIRECTION_SHARE = 1 / 3;
 
+const NONLINEAR =
+  'Directions come from nonlinear mechanisms whose additive noise is independent of the causes (Peters et al. 2014); where a mechanism is close to linear with Gaussian noise the data do not fix its direction, and a high probability then reflects the learner more than the data.';
+
 /** What the directions of each learner rest on (ours, in plain words; the papers in src/core/discovery). */
 const DIRECTIONS: Readonly<Record<string, string>> = {
-  cam: 'Directions come from nonlinear mechanisms whose additive noise is independent of the causes (Peters et al. 2014); where a mechanism is close to linear with Gaussian noise the data do not fix its direction, and a high probability then reflects the learner more than the data.',
-  'mlp-notears':
-    'Directions come from nonlinear mechanisms whose additive noise is independent of the causes (Peters et al. 2014); where a mechanism is close to linear with Gaussian noise the data do not fix its direction, and a high probability then reflects the learner more than the data.',
+  cam: NONLINEAR,
+  'mlp-notears': NONLINEAR,
   'direct-lingam': 'Directions come from non-Gaussian noise in linear mechanisms (Shimizu et al. 2011); where the noise is close to Gaussian the data do not fix them.',
   'linear-notears':
     'This learner fits linear mechanisms; with Gaussian noise, data fix only the Markov equivalence class, not every direction, so treat its directions as hypotheses to confirm with background knowledge.',
