@@ -94,7 +94,7 @@ export async function csvUpload(request: FastifyRequest, uploadLimit: number): P
   // otherwise cut the file at the limit silently). Parts come in the order they were sent:
   // the fields before the file, then the file, then (read after it) anything that followed.
   const parts = request.parts({ limits: { fileSize: uploadLimit + 1, files: 1, fields: 10, fieldSize: 200_000 } })[Symbol.asyncIterator]();
-  const fields: Record<string, string> = {};
+  const fields = new Map<string, string>();
   let file: MultipartFile | undefined;
   for (;;) {
     const next = await parts.next();
@@ -104,7 +104,7 @@ export async function csvUpload(request: FastifyRequest, uploadLimit: number): P
       file = part;
       break;
     }
-    if (typeof part.value === 'string' && !(part.fieldname in fields)) fields[part.fieldname] = part.value;
+    if (typeof part.value === 'string' && !fields.has(part.fieldname)) fields.set(part.fieldname, part.value);
   }
   const trailing = async (): Promise<string[]> => {
     const late: string[] = [];
@@ -123,7 +123,7 @@ export async function csvUpload(request: FastifyRequest, uploadLimit: number): P
   };
   return {
     body: limitBytes(file.file, uploadLimit),
-    fields: { name: fields.name, kinds: fields.kinds, schema: fields.schema, filename: file.filename },
+    fields: { name: fields.get('name'), kinds: fields.get('kinds'), schema: fields.get('schema'), filename: file.filename },
     trailing,
   };
 }
