@@ -173,7 +173,8 @@ interface Orientation {
 let sachsOrientation: Orientation | undefined;
 // The nonlinear learner `auto` picks for nonlinear data (auto.ts): cam, else mlp-notears.
 const nonlinearLearner = available.has('cam') ? 'cam' : available.has('mlp-notears') ? 'mlp-notears' : null;
-if (!only || only.includes('sachs')) {
+/** The Sachs et al. (2005) CD3/CD28 rows, log-transformed then standardised, and the 20-edge consensus graph. */
+function loadSachs(): { names: string[]; frame: Frame; truthEdges: Array<[string, string]>; truth: Graph } {
   const dir = join(here, '..', '..', 'shared', 'data', 'sachs2005');
   const root = process.env.SACHS_DIR ?? (tryRead(join(dir, 'sachs2005_cd3cd28_observational.csv')) ? dir : '/work/shared/data/sachs2005');
   const rows = readFileSync(join(root, 'sachs2005_cd3cd28_observational.csv'), 'utf8').trim().split('\n');
@@ -190,6 +191,11 @@ if (!only || only.includes('sachs')) {
     .slice(1)
     .map((l) => l.split(',') as [string, string]);
   const truth = graphFromEdges(names, truthEdges);
+  return { names, frame, truthEdges, truth };
+}
+
+if (!only || only.includes('sachs')) {
+  const { names, frame, truthEdges, truth } = loadSachs();
   const learners = [...['pc', 'direct-lingam', 'linear-notears', 'mlp-notears', 'cam'].filter((l) => available.has(l as 'pc')), 'auto', 'r2-sort-regress', 'empty'];
   for (const learner of learners) {
     try {
@@ -251,6 +257,27 @@ if (!only || only.includes('sachs')) {
     return { edge: t.edge, agrees: r.direction === 'forward', hsic_forward: +r.hsicForward.toExponential(3), hsic_backward: +r.hsicBackward.toExponential(3) };
   });
   sachsOrientation = { ensemble: sachsOrientation?.ensemble ?? [], anm };
+}
+
+// Sachs over 5 seeds of the nonlinear learner and of its ensemble (part 'sachs-seeds'): how much
+// of a one-point difference on these 853 rows is the seed's.
+interface SachsSeed {
+  seed: number;
+  single_shd: number;
+  ensemble_shd: number;
+  ensemble_edges: number;
+}
+let sachsSeeds: SachsSeed[] | undefined;
+if (nonlinearLearner && !quick && (!only || only.includes('sachs-seeds'))) {
+  const { names, frame, truth } = loadSachs();
+  sachsSeeds = [];
+  for (const seed of [1, 2, 3, 4, 5]) {
+    const single = edgeScores(learn(frame, {}, { learner: nonlinearLearner as 'cam', seed }).graph, truth).shd;
+    const set = await runBootstrap(frame, {}, { learner: nonlinearLearner as 'cam' }, { replicates: 20, seed, threads: 2 });
+    const graph = majorityGraph(set.edgeProbability, names);
+    sachsSeeds.push({ seed, single_shd: single, ensemble_shd: edgeScores(graph, truth).shd, ensemble_edges: edgeCount(graph) });
+    log(`sachs seed ${seed}: ${JSON.stringify(sachsSeeds.at(-1))}`);
+  }
 }
 
 /** Edges with probability (either direction) ≥ 0.5, each in its more frequent direction. */
@@ -354,6 +381,7 @@ interface Results {
   sachs: { [learner: string]: { shd: number; edges: number } };
   sachs_visibility?: Visibility;
   sachs_orientation?: Orientation;
+  sachs_seeds?: SachsSeed[];
   speed: Speed[];
 }
 
@@ -361,7 +389,7 @@ interface Results {
 // what this run measured, so the full benchmark can be run in parts on a busy machine.
 const outFile = join(here, 'results', 'discovery.json');
 const run: Run = { generated: new Date().toISOString(), only, load_start: loadBefore, load_end: loadAfter };
-let results: Results = { quick, seeds, runs: [run], records, sachs, sachs_visibility: sachsVisibility, sachs_orientation: sachsOrientation, speed };
+let results: Results = { quick, seeds, runs: [run], records, sachs, sachs_visibility: sachsVisibility, sachs_orientation: sachsOrientation, sachs_seeds: sachsSeeds, speed };
 if (only) {
   try {
     const prev = JSON.parse(readFileSync(outFile, 'utf8')) as Results;
@@ -375,6 +403,7 @@ if (only) {
         sachs: only.includes('sachs') ? sachs : prev.sachs,
         sachs_visibility: only.includes('sachs') ? sachsVisibility : prev.sachs_visibility,
         sachs_orientation: only.includes('sachs') ? sachsOrientation : prev.sachs_orientation,
+        sachs_seeds: only.includes('sachs-seeds') ? sachsSeeds : prev.sachs_seeds,
         speed: [...prev.speed.filter((p) => !speed.some((q) => q.run === p.run)), ...speed],
       };
     }
@@ -425,6 +454,14 @@ if (ori) {
       `Pairwise additive-noise direction test (anm-direction.ts, Hoyer et al. 2009) on the ${ori.anm.length} visible consensus edges: agrees with the consensus on ${agree.length} (${agree.map((e) => e.edge).join(', ')}); prefers the reverse of ${ori.anm.filter((e) => !e.agrees).map((e) => e.edge).join(', ')}.`,
     );
   }
+}
+const ss = results.sachs_seeds;
+if (ss && ss.length) {
+  const med = (xs: number[]) => xs.slice().sort((a, b) => a - b)[xs.length >> 1];
+  lines.push('');
+  lines.push(
+    `Sachs over seeds ${ss.map((x) => x.seed).join(', ')} (\`--only sachs-seeds\`): single ${nonlinearLearner ?? 'nonlinear'} run SHD ${ss.map((x) => x.single_shd).join(' / ')} (median ${med(ss.map((x) => x.single_shd))}); 20-replicate ensemble SHD ${ss.map((x) => x.ensemble_shd).join(' / ')} (median ${med(ss.map((x) => x.ensemble_shd))}), with ${ss.map((x) => x.ensemble_edges).join(' / ')} edges.`,
+  );
 }
 if (results.speed.length) {
   lines.push('');
