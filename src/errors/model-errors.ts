@@ -37,6 +37,11 @@ export const MODEL_ERRORS = {
     title: 'Learner cannot take these columns',
     template: '{reason}.',
   },
+  ERR_MODEL_LEARNER_OPTIONS: {
+    status: 400,
+    title: 'Learner option not accepted',
+    template: 'learnerOptions: {reason}.',
+  },
   ERR_MODEL_KNOWLEDGE: {
     status: 400,
     title: 'Contradictory knowledge',

@@ -49,6 +49,11 @@ describe.each(backends())('model spec refusals on %s', (backend) => {
     ],
     ['a fixed graph with a cycle', { fixedGraph: { edges: [['programme', 'winter_kwh'], ['winter_kwh', 'programme']] } }, 'ERR_MODEL_FIXED_GRAPH_CYCLE', /programme→winter_kwh/],
     ['direct-lingam on categorical columns', { learner: 'direct-lingam' }, 'ERR_MODEL_LEARNER_COLUMNS', /"region" \(3 levels\).*choose learner "pc" or "auto"/],
+    ['a misspelt learner option', { learner: 'cam', learnerOptions: { candidate: 10 } }, 'ERR_MODEL_LEARNER_OPTIONS', /unknown option "candidate" for learner cam; its options are .*candidates/],
+    ['an option of another learner', { learner: 'pc', learnerOptions: { candidates: 10 } }, 'ERR_MODEL_LEARNER_OPTIONS', /unknown option "candidates" for learner pc; its options are alpha, /],
+    ['a number sent as text', { learner: 'pc', learnerOptions: { alpha: '0.05' } }, 'ERR_MODEL_LEARNER_OPTIONS', /pc: option "alpha" must be a number, got "0.05"/],
+    ['a value the learner refuses', { learner: 'auto', learnerOptions: { alpha: 2 } }, 'ERR_MODEL_LEARNER_OPTIONS', /alpha must lie in \(0, 1\), got 2/],
+    ['the seed among the options', { learnerOptions: { seed: 3 } }, 'ERR_MODEL_LEARNER_OPTIONS', /the seed is set on its own/],
   ])('refuses %s with 400, naming what to change, and writes nothing', async (_what, spec, code, message) => {
     const res = await create(spec);
     expect(res.statusCode).toBe(400);

@@ -25,7 +25,12 @@ export const CreateModelBody = z
     knowledge: Knowledge.optional(),
     fixedGraph: z.object({ edges: z.array(Edge).max(10_000) }).strict().optional().describe('Skip learning: use exactly these edges (weight 1).'),
     learner: z.enum(['auto', 'pc', 'linear-notears', 'mlp-notears', 'direct-lingam', 'cam']).optional().describe('Graph learner; auto picks one from the data and says why.'),
-    learnerOptions: z.record(z.string(), z.union([z.number(), z.string(), z.boolean()])).optional(),
+    learnerOptions: z
+      .record(z.string(), z.union([z.number(), z.string(), z.boolean()]))
+      .optional()
+      .describe(
+        'The learner\'s own options (for example {"alpha": 0.05} for pc, {"candidates": 10} for cam), plus "missing" ("mean-mode" or "drop-rows") and "standardise". An option the learner does not have, or a value it refuses, answers 400 ERR_MODEL_LEARNER_OPTIONS; with learner "auto", options of learners it does not pick are noted and unused.',
+      ),
     replicates: z.number().int().min(1).max(200).optional().describe('Bootstrap replicates (default 20).'),
     mechanisms: z
       .object({

@@ -8,6 +8,7 @@
 import { randomUUID } from 'node:crypto';
 import { directLingamRefusal } from '../../core/discovery/direct-lingam.js';
 import { compileKnowledge, KnowledgeError } from '../../core/discovery/knowledge.js';
+import { checkLearnerOptions } from '../../core/discovery/learner-options.js';
 import { graphFromEdges } from '../../core/graph/graph.js';
 import { topologicalOrder } from '../../core/graph/index.js';
 import { dataError } from '../../errors/data-errors.js';
@@ -72,6 +73,14 @@ export async function resolveSpec(deps: ModelsDeps, workspaceId: string, input: 
     const g = graphFromEdges(variables, input.fixedGraph.edges);
     if (!topologicalOrder(g)) {
       throw modelError('ERR_MODEL_FIXED_GRAPH_CYCLE', { cycle: input.fixedGraph.edges.map(([a, b]) => `${a}→${b}`).join(', ') });
+    }
+  }
+  if (input.learnerOptions && !input.fixedGraph) {
+    try {
+      checkLearnerOptions(input.learner ?? SPEC_DEFAULTS.learner, input.learnerOptions);
+    } catch (e) {
+      if (e instanceof RangeError || e instanceof TypeError) throw modelError('ERR_MODEL_LEARNER_OPTIONS', { reason: e.message });
+      throw e;
     }
   }
   if (input.learner === 'direct-lingam' && !input.fixedGraph) {

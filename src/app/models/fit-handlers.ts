@@ -21,6 +21,7 @@ import { runCompute } from '../../jobs/compute-pool.js';
 import { JobCancelledError, type JobProgress, type JobRun, type QueuePort } from '../../jobs/queue-port.js';
 import { CancelledJobError, type JobRow, type JobsRepository } from '../../store/jobs-repository.js';
 import type { ModelsRepository } from '../../store/models-repository.js';
+import { optionsFor } from '../../core/discovery/learner-options.js';
 
 export interface FitHandlerDeps {
   queue: QueuePort;
@@ -98,6 +99,8 @@ export function registerFitHandlers(deps: FitHandlerDeps): void {
         learnerNotes = choice.notes;
       }
       const concrete = learner as FitReplicateData['learner'];
+      const unused = optionsFor(concrete, spec.learnerOptions).unused;
+      if (unused.length > 0) learnerNotes = [...learnerNotes, `auto: option(s) ${unused.join(', ')} belong to other learners than ${concrete} and were not used`];
       const children = Array.from({ length: spec.replicates }, (_, k) => ({
         name: FIT_JOB.replicate,
         data: { ...d, learner: concrete, replicateIndex: k } satisfies FitReplicateData,
@@ -123,7 +126,7 @@ export function registerFitHandlers(deps: FitHandlerDeps): void {
         {
           frame,
           knowledge: spec.knowledge,
-          options: { ...spec.learnerOptions, learner: d.learner, seed: spec.seed },
+          options: { ...optionsFor(d.learner, spec.learnerOptions).used, learner: d.learner, seed: spec.seed },
           replicateIndex: d.replicateIndex,
           seed: spec.seed,
         },

@@ -140,6 +140,10 @@ function validate(o: Partial<CamOptions>): CamOptions {
 
 export const cam: Learner<CamOptions> = {
   name: 'cam',
+  defaults: CAM_DEFAULTS,
+  checkOptions(options: Partial<CamOptions>): void {
+    validate(options);
+  },
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<CamOptions>, rng: Rng): LearnResult {
     const o = validate(options);
     const names = checkKnowledge(frame, knowledge, 'cam');

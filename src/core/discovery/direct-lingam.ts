@@ -69,13 +69,21 @@ export function directLingamRefusal(columns: ReadonlyArray<{ readonly name: stri
   return `direct-lingam models numeric variables, and the level codes of the categorical column${bad.length > 1 ? 's' : ''} ${list} have no order; choose learner "pc" or "auto", or leave ${bad.length > 1 ? 'them' : 'it'} out of the model's variables`;
 }
 
+function validate(o: Partial<DirectLingamOptions>): DirectLingamOptions {
+  const v = { ...DIRECT_LINGAM_DEFAULTS, ...o };
+  if (!(v.gamma > 0)) throw new RangeError(`direct-lingam: gamma must be > 0, got ${v.gamma}`);
+  if (!(v.orderRows >= 3)) throw new RangeError(`direct-lingam: orderRows must be ≥ 3, got ${v.orderRows}`);
+  return v;
+}
+
 export const directLingam: Learner<DirectLingamOptions> = {
   name: 'direct-lingam',
+  defaults: DIRECT_LINGAM_DEFAULTS,
+  checkOptions(options: Partial<DirectLingamOptions>): void {
+    validate(options);
+  },
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<DirectLingamOptions>, _rng: Rng): LearnResult {
-    const gamma = options.gamma ?? DIRECT_LINGAM_DEFAULTS.gamma;
-    if (!(gamma > 0)) throw new RangeError(`direct-lingam: gamma must be > 0, got ${gamma}`);
-    const orderRows = options.orderRows ?? DIRECT_LINGAM_DEFAULTS.orderRows;
-    if (!(orderRows >= 3)) throw new RangeError(`direct-lingam: orderRows must be ≥ 3, got ${orderRows}`);
+    const { gamma, orderRows } = validate(options);
     const names = frame.columns.map((c) => c.name);
     const d = names.length;
     const n = frame.nRows;

@@ -5,6 +5,7 @@ import { Rng } from '../random/rng.js';
 import { chooseLearner } from './auto.js';
 import { compileKnowledge, type CompiledKnowledge, type Knowledge } from './knowledge.js';
 import type { LearnerName, LearnResult } from './learner.js';
+import { checkLearnerOptions, optionsFor } from './learner-options.js';
 import { availableLearners, getLearner } from './registry.js';
 
 /**
@@ -60,6 +61,7 @@ export function learn(frame: Frame, knowledge: Knowledge, options: LearnOptions)
   if (copyOf !== undefined && (!(copyOf instanceof Int32Array) || copyOf.length !== frame.nRows)) {
     throw new RangeError(`learn: copyOf must be an Int32Array with one entry per row (${frame.nRows})`);
   }
+  checkLearnerOptions(requested, learnerOptions);
   const seedValue = seed ?? 0;
   if (!Number.isFinite(seedValue)) throw new TypeError(`learn: seed must be a finite number, got ${String(seed)}`);
   if (frame.nRows < 3) throw new RangeError(`learn: need at least 3 rows, got ${frame.nRows}`);
@@ -78,8 +80,10 @@ export function learn(frame: Frame, knowledge: Knowledge, options: LearnOptions)
     notes.push(`auto: chose ${choice.learner}`);
   }
   const learner = getLearner(name);
+  const { used, unused } = optionsFor(learner.name, learnerOptions);
+  if (unused.length > 0) notes.push(`auto: option(s) ${unused.join(', ')} belong to other learners than ${learner.name} and were not used`);
   const copies = copyOf && imputed.kept ? Int32Array.from(imputed.kept, (r) => copyOf[r]) : copyOf;
-  const result = learner.learn(data, compiled, copies ? { ...learnerOptions, copyOf: copies } : learnerOptions, Rng.create(seedValue));
+  const result = learner.learn(data, compiled, copies ? { ...used, copyOf: copies } : used, Rng.create(seedValue));
   checkResult(result, compiled);
   return {
     ...result,

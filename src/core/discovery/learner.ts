@@ -30,5 +30,9 @@ export interface LearnResult {
  */
 export interface Learner<O = Record<string, unknown>> {
   readonly name: Exclude<LearnerName, 'auto'>;
+  /** Every option with its default: the option names, and the JavaScript type of each value. */
+  readonly defaults: Readonly<O>;
+  /** Throws (RangeError or TypeError, naming the option) when `learn` would refuse these options. */
+  checkOptions(options: Partial<O>): void;
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<O>, rng: Rng): LearnResult;
 }

@@ -110,6 +110,10 @@ function validate(o: Partial<LinearNotearsOptions>): LinearNotearsOptions {
 
 export const linearNotears: Learner<LinearNotearsOptions> = {
   name: 'linear-notears',
+  defaults: LINEAR_NOTEARS_DEFAULTS,
+  checkOptions(options: Partial<LinearNotearsOptions>): void {
+    validate(options);
+  },
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<LinearNotearsOptions>, rng: Rng): LearnResult {
     const o = validate(options);
     const { x, names, start: blockStart, owner, expanded, scaled } = frameToEncodedMatrix(frame, knowledge, 'linear-notears');

@@ -95,6 +95,10 @@ function validate(o: Partial<MlpNotearsOptions>): MlpNotearsOptions {
 
 export const mlpNotears: Learner<MlpNotearsOptions> = {
   name: 'mlp-notears',
+  defaults: MLP_NOTEARS_DEFAULTS,
+  checkOptions(options: Partial<MlpNotearsOptions>): void {
+    validate(options);
+  },
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<MlpNotearsOptions>, rng: Rng): LearnResult {
     const o = validate(options);
     const names = checkKnowledge(frame, knowledge, 'mlp-notears');

@@ -73,6 +73,10 @@ function validate(o: Partial<PcOptions>): PcOptions {
 /** The PC-stable learner; deterministic (it draws no random numbers). */
 export const pc: Learner<PcOptions> = {
   name: 'pc',
+  defaults: PC_DEFAULTS,
+  checkOptions(options: Partial<PcOptions>): void {
+    validate(options);
+  },
   learn(frame: Frame, knowledge: CompiledKnowledge, options: Partial<PcOptions>, _rng: Rng): LearnResult {
     const o = validate(options);
     const names = frame.columns.map((c) => c.name);
