@@ -241,6 +241,32 @@ describe.each(backends())('bad input on %s', (backend) => {
     },
     { name: 'a CSV upload without a name', request: csv('a\n1\n', 'kinds=a:continuous'), status: 400, type: 'ERR_REQUEST_VALIDATION', mentions: ['"name"'] },
     { name: 'a kinds parameter with an unknown kind', request: csv('a\n1\n', 'name=x&kinds=a:ordinal'), status: 400, type: 'ERR_REQUEST_VALIDATION', mentions: ['"kinds"'] },
+    // A misspelt parameter or key must not be ignored: the upload would go ahead without it.
+    { name: 'a misspelt query parameter (kind for kinds)', request: csv('a\n1\n', 'name=x&kind=a:categorical'), status: 400, type: 'ERR_REQUEST_VALIDATION', mentions: ['Unrecognized key: "kind"'] },
+    {
+      name: 'a misspelt key in a JSON dataset (shema for schema)',
+      request: () => ({
+        method: 'POST' as const,
+        url: '/v1/datasets',
+        headers: { ...bearer(t.a.adminKey), 'content-type': 'application/json' },
+        payload: { name: 'x', columns: ['a'], rows: [['1']], shema: { a: 'categorical' } },
+      }),
+      status: 400,
+      type: 'ERR_REQUEST_VALIDATION',
+      mentions: ['shema'],
+    },
+    {
+      name: 'a misspelt key in a column declaration (level for levels)',
+      request: () => ({
+        method: 'POST' as const,
+        url: '/v1/datasets',
+        headers: { ...bearer(t.a.adminKey), 'content-type': 'application/json' },
+        payload: { name: 'x', columns: ['a'], rows: [['u']], schema: { a: { kind: 'categorical', level: ['u', 'v'] } } },
+      }),
+      status: 400,
+      type: 'ERR_REQUEST_VALIDATION',
+      mentions: ['level'],
+    },
     {
       name: 'an appended batch with other columns',
       request: append('region,dwelling\ncoast,flat\n'),

@@ -3,10 +3,12 @@ import { z } from 'zod';
 
 export const ColumnKind = z.enum(['continuous', 'binary', 'categorical']);
 
-const ColumnDeclaration = z.object({
-  kind: ColumnKind,
-  levels: z.array(z.string()).optional().describe('Binary: exactly two labels, the first coded 0. Categorical: the allowed labels.'),
-});
+const ColumnDeclaration = z
+  .object({
+    kind: ColumnKind,
+    levels: z.array(z.string()).optional().describe('Binary: exactly two labels, the first coded 0. Categorical: the allowed labels.'),
+  })
+  .strict();
 
 /** Declared kinds by column name; a bare kind is short for {kind}. */
 export const SchemaDeclaration = z
@@ -24,7 +26,7 @@ export const UploadQuery = z.object({
     .optional()
     .describe('Declared kinds as "column:kind,column:kind", e.g. "region:categorical,occupants:continuous".'),
   schema: z.string().max(100_000).optional().describe('Declared columns as a JSON object (URL-encoded), for declared levels.'),
-});
+}).strict();
 
 /** JSON body of a new dataset. */
 export const CreateDatasetJson = z.object({
@@ -32,13 +34,15 @@ export const CreateDatasetJson = z.object({
   columns: z.array(z.string()).describe('Column names, in the order of the cells in each row.'),
   rows: z.array(z.array(z.unknown())).describe('Rows of cells: number, string, boolean, or null for missing.'),
   schema: SchemaDeclaration.optional(),
-});
+}).strict();
 
 /** JSON body of an appended batch. */
-export const AppendBatchJson = z.object({
-  columns: z.array(z.string()),
-  rows: z.array(z.array(z.unknown())),
-});
+export const AppendBatchJson = z
+  .object({
+    columns: z.array(z.string()),
+    rows: z.array(z.array(z.unknown())),
+  })
+  .strict();
 
 export const CsvBody = z.any().describe('CSV text: a header line naming the columns, then one line per row. Empty cells and NA are missing values. Streamed, never buffered.');
 export const MultipartBody = z
