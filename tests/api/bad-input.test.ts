@@ -167,6 +167,16 @@ describe.each(backends())('bad input on %s', (backend) => {
       mentions: ['"kinds"'],
     },
     {
+      name: 'an unknown multipart field (kind for kinds)',
+      request: () => {
+        const mp = multipartBody(HOUSEHOLDS_CSV, { name: 'mp', kind: 'occupants:categorical' });
+        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
+      },
+      status: 400,
+      type: 'ERR_REQUEST_VALIDATION',
+      mentions: ['form field "kind"', 'send only name, kinds, schema'],
+    },
+    {
       name: 'a multipart kinds field with an unknown kind',
       request: () => {
         const mp = multipartBody(HOUSEHOLDS_CSV, { name: 'mp', kinds: 'occupants:ordinal' });

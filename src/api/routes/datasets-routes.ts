@@ -24,7 +24,7 @@ import {
   MultipartBody,
   UploadQuery,
 } from '../schemas/datasets.js';
-import { checkedName, csvUpload, declarations, mediaTypeOf, refuseTrailingParts, UPLOAD_MEDIA_TYPES, withUploadLimit } from './upload-source.js';
+import { checkedName, csvUpload, declarations, mediaTypeOf, refuseTrailingParts, refuseUnknownFields, UPLOAD_MEDIA_TYPES, withUploadLimit } from './upload-source.js';
 
 /** Options of the datasets routes. */
 export interface DatasetsRouteOptions {
@@ -87,6 +87,7 @@ export const datasetsRoutes: FastifyPluginAsyncZod<DatasetsRouteOptions> = async
         const upload = await csvUpload(request, uploadLimit);
         const f = upload.fields;
         result = await withUploadLimit(upload, async () => {
+          refuseUnknownFields(f);
           const location = f ? 'form' : 'query';
           const name = checkedName(f?.name ?? q.name ?? f?.filename?.replace(/\.[^.]*$/, ''), f?.name ? location : 'query');
           const schema = declarations(f?.kinds ?? q.kinds, f?.schema ?? q.schema, location);

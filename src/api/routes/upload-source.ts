@@ -64,6 +64,12 @@ export function declarations(kinds: string | undefined, schema: string | undefin
   return { ...(kinds ? parseKinds(kinds, location) : {}), ...(schema ? parseSchemaParam(schema, location) : {}) };
 }
 
+/** Refuses (400) form fields a new dataset does not take, naming the ones it does. */
+export function refuseUnknownFields(fields: CsvUpload['fields']): void {
+  const k = fields?.others[0];
+  if (k !== undefined) throw invalid('form', k, `is not a field of this upload; send only ${FORM_FIELDS.join(', ')} (before the file)`);
+}
+
 /** Check a dataset name from a query string or form field. */
 export function checkedName(name: string | undefined, location: string): string {
   if (name === undefined) throw invalid(location, 'name', 'Required: a dataset name');
@@ -72,11 +78,14 @@ export function checkedName(name: string | undefined, location: string): string 
   return parsed.data;
 }
 
+/** The form fields a multipart upload may send before its file. */
+export const FORM_FIELDS = ['name', 'kinds', 'schema'];
+
 /** A streamed CSV upload, already behind the byte limit. */
 export interface CsvUpload {
   body: ByteLimit;
   /** Name and declarations from multipart fields (undefined for a text/csv body). */
-  fields?: { name?: string; kinds?: string; schema?: string; filename?: string };
+  fields?: { name?: string; kinds?: string; schema?: string; filename?: string; others: string[] };
   /**
    * Multipart only: once the file has been read, the names of the parts that followed it. A
    * field there came too late to shape the upload (the file streams as it arrives), so the
@@ -123,7 +132,13 @@ export async function csvUpload(request: FastifyRequest, uploadLimit: number): P
   };
   return {
     body: limitBytes(file.file, uploadLimit),
-    fields: { name: fields.get('name'), kinds: fields.get('kinds'), schema: fields.get('schema'), filename: file.filename },
+    fields: {
+      name: fields.get('name'),
+      kinds: fields.get('kinds'),
+      schema: fields.get('schema'),
+      filename: file.filename,
+      others: [...fields.keys()].filter((k) => !FORM_FIELDS.includes(k)),
+    },
     trailing,
   };
 }
