@@ -130,6 +130,13 @@ describe.each(backends())('auth and keys on %s', (backend) => {
     expect(res.json().detail).toContain('scopes[0]');
   });
 
+  it('refuses an unknown key in the body (label for name) instead of dropping it', async () => {
+    const res = await t.app.inject({ method: 'POST', url: '/v1/keys', headers: bearer(t.a.adminKey), payload: { scopes: ['read'], label: 'etl' } });
+    expect(res.statusCode).toBe(400);
+    expect(res.json()).toMatchObject({ type: 'ERR_REQUEST_VALIDATION', location: 'body' });
+    expect(res.json().detail).toContain('Unrecognized key: "label"');
+  });
+
   it('bootstraps an empty database once, with a generated key or the given one', async () => {
     const fresh = await startTestApp(backend);
     try {

@@ -19,10 +19,12 @@ export const CreatedKey = KeyView.extend({
 
 export const KeyList = z.object({ keys: z.array(KeyView) });
 
-export const CreateKeyBody = z.object({
-  name: z.string().max(200).optional().describe('A label for the key, e.g. the system that uses it.'),
-  scopes: z.array(Scope).min(1).describe('read: GETs and queries; write: data, models, fits; admin: keys.'),
-});
+export const CreateKeyBody = z
+  .object({
+    name: z.string().max(200).optional().describe('A label for the key, e.g. the system that uses it.'),
+    scopes: z.array(Scope).min(1).describe('read: GETs and queries; write: data, models, fits; admin: keys.'),
+  })
+  .strict();
 
 export const KeyIdParams = z.object({ id: z.string().min(1).max(100) });
 

@@ -118,7 +118,7 @@ export const DiffView = z.object({
 export const ScheduleBody = z.object({
   cron: z.string().min(9).max(100).describe('Five cron fields, e.g. "0 2 * * *" for 02:00 every night.'),
   timezone: z.string().min(1).max(64).describe('IANA time zone, e.g. "Europe/London".'),
-});
+}).strict();
 export const ScheduleView = z.object({
   modelId: z.string(),
   cron: z.string(),
