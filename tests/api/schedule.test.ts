@@ -74,6 +74,16 @@ describe.each(backends())('refit schedule on %s', (backend) => {
     expect((await call('GET')).json()).toMatchObject({ cron: '0 2 * * *', timezone: 'Europe/London' });
   });
 
+  it('lists the model’s jobs by modelId, and refuses a misspelt filter rather than list every job', async () => {
+    const ok = await t.app.inject({ method: 'GET', url: `/v1/jobs?modelId=${modelId}`, headers: bearer(t.a.adminKey) });
+    expect(ok.statusCode).toBe(200);
+    expect(ok.json().jobs.length).toBeGreaterThanOrEqual(1);
+    for (const j of ok.json().jobs) expect(j.modelId).toBe(modelId);
+    const typo = await t.app.inject({ method: 'GET', url: `/v1/jobs?modelid=${modelId}`, headers: bearer(t.a.adminKey) });
+    expect(typo.statusCode).toBe(400);
+    expect(typo.json().detail).toContain('Unrecognized key: "modelid"');
+  });
+
   it('replaces it, then removes it', async () => {
     const res = await call('PUT', { cron: '30 23 * * 1-5', timezone: 'America/New_York' });
     expect(res.statusCode).toBe(200);

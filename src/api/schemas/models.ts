@@ -130,5 +130,6 @@ export const ScheduleView = z.object({
 
 export const IdParams = z.object({ id: z.string().min(1).max(100) });
 export const VersionParams = z.object({ id: z.string().min(1).max(100), version: z.string().min(1).max(100) });
-export const DiffQuery = z.object({ from: z.string().min(1).max(100), to: z.string().min(1).max(100).default('current') });
-export const JobsQuery = z.object({ modelId: z.string().max(100).optional(), limit: z.coerce.number().int().min(1).max(500).optional() });
+export const DiffQuery = z.object({ from: z.string().min(1).max(100), to: z.string().min(1).max(100).default('current') }).strict();
+/** Strict: a misspelt filter (modelid) must not silently list every job. */
+export const JobsQuery = z.object({ modelId: z.string().max(100).optional(), limit: z.coerce.number().int().min(1).max(500).optional() }).strict();
