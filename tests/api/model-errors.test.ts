@@ -34,6 +34,7 @@ describe.each(backends())('model spec refusals on %s', (backend) => {
 
   it.each([
     ['an unknown variable', { variables: ['region', 'tariff', 'winter_kwh'] }, 'ERR_MODEL_UNKNOWN_VARIABLE', /"tariff"/],
+    ['a mechanism family for an unknown variable', { mechanisms: { perNode: { winter_kwhh: 'mlp' } } }, 'ERR_MODEL_UNKNOWN_VARIABLE', /mechanisms.perNode.*"winter_kwhh"/],
     ['the same treatment and outcome', { treatment: 'winter_kwh', outcome: 'winter_kwh' }, 'ERR_QUERY_INVALID', /same variable/],
     [
       'required edges that form a cycle',

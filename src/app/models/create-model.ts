@@ -55,6 +55,7 @@ export async function resolveSpec(deps: ModelsDeps, workspaceId: string, input: 
   const spec_ = 'the model\'s variables';
   if (input.treatment) check('treatment', input.treatment, chosen, spec_, variables);
   if (input.outcome) check('outcome', input.outcome, chosen, spec_, variables);
+  for (const v of Object.keys(input.mechanisms?.perNode ?? {})) check('mechanisms.perNode', v, chosen, spec_, variables);
   if (input.treatment && input.treatment === input.outcome) {
     throw modelError('ERR_QUERY_INVALID', { reason: 'treatment and outcome are the same variable; choose two different variables.' });
   }
