@@ -57,6 +57,7 @@ export interface EffectEstimate extends ContrastSummary {
 export const INTERVAL_METHOD =
   'Per graph: mean of per-unit counterfactual differences over the reference rows (common random numbers); ' +
   'standard error = sqrt(max(Monte Carlo se of the unit differences, cross-check influence-function se)² + (simulation − cross-check)²); ' +
+  'a graph without a path from treatment to outcome has estimate 0, cross-checked the same way (adjusted for the treatment\'s parents); ' +
   'interval: central quantiles of the weight mixture of per-graph normal approximations.';
 
 /** ATE (or CATE for `segment`) of `arm` against `reference`. */

@@ -38,9 +38,15 @@ export function queryCautions(
   for (const [arm, graphs] of flagged) {
     out.push(`Arm "${arm}" has little support in the data for some units (graphs ${graphs.join(', ')}): many units almost never or almost always receive it given the adjustment variables, so the estimate for it leans on extrapolation.`);
   }
-  const disagree = perGraph.filter((g) => g.crossCheck?.disagrees).map((g) => g.graph);
+  const disagree = perGraph.filter((g) => g.crossCheck?.disagrees && g.causalPath).map((g) => g.graph);
   if (disagree.length > 0) {
     out.push(`In graph(s) ${disagree.join(', ')} the simulation and the cross-check estimator disagree beyond their intervals; the fitted mechanisms may be misspecified for this question.`);
+  }
+  const missing = perGraph.filter((g) => g.crossCheck?.disagrees && !g.causalPath).map((g) => g.graph);
+  if (missing.length > 0) {
+    out.push(
+      `Graph(s) ${missing.join(', ')} have no directed path from "${treatment}" to "${outcome}", yet the cross-check adjusted for the treatment's parents there finds an effect: the data may hold an edge these graphs leave out. The interval is widened by the gap; background knowledge or more data about that edge would settle it.`,
+    );
   }
   if (!crossChecked) {
     out.push('No cross-check was available, so the interval reflects graph uncertainty and Monte Carlo error only, not the estimation error of the fitted mechanisms.');

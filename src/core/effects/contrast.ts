@@ -12,7 +12,10 @@
  *    an estimator that does not depend on the mechanism family (for AIPW, the semiparametric
  *    efficiency bound, Hahn 1998), and it already contains the between-unit variation, so the
  *    two are not added: se_g = max(MC se, cross-check se).
- * A graph without a directed path treatment ⇝ outcome has effect exactly 0 (se 0).
+ * A graph without a directed path treatment ⇝ outcome has effect exactly 0 and no Monte Carlo
+ * error; its cross-check (adjusted for the treatment's parents) tests that zero against the
+ * data, and a gap between them widens its error like any other graph's, so a graph set that
+ * leaves out an edge the data show does not answer "exactly zero".
  * The interval is the central `level` range of the mixture Σ w_g N(est_g, se_g²)
  * (effects/interval.ts). Without a cross-check, se_g is the Monte Carlo part only, which
  * understates the error of a well-fitted model; the cautions say so.
@@ -152,10 +155,12 @@ export function contrast(
     rows = cnt;
     const mcSe = mcSes[g];
     const causal = u.causalPath[g] === 1;
+    // The graph's own estimate: exactly zero without a path (its arms simulate the same outcomes).
+    const est = causal ? m : 0;
     const check = checks ? checks[g] : null;
     let cc: CrossCheckEstimate | null = null;
     let seG = causal ? mcSe : 0;
-    if (check && check.scores && causal) {
+    if (check && check.scores) {
       const sc = check.scores;
       let c = byScores.get(sc);
       if (c === undefined) {
@@ -172,17 +177,17 @@ export function contrast(
       if (Number.isFinite(c.se)) {
         const sampling = Math.max(seG, c.se);
         // Flag: the sampling-error intervals of the two estimates do not overlap.
-        disagrees = c.upper < m - z * sampling || c.lower > m + z * sampling;
+        disagrees = c.upper < est - z * sampling || c.lower > est + z * sampling;
         // Specification term: both estimate the same contrast under this graph; a gap between
         // them points at misspecified mechanisms, so it widens the error.
-        const gap = m - c.estimate;
+        const gap = est - c.estimate;
         seG = Math.sqrt(sampling * sampling + gap * gap);
       }
       cc = { method: sc.method, estimate: c.estimate, se: c.se, lower: c.lower, upper: c.upper, disagrees };
     }
-    const lo = m - z * seG;
-    const hi = m + z * seG;
-    mu[g] = causal ? m : 0;
+    const lo = est - z * seG;
+    const hi = est + z * seG;
+    mu[g] = est;
     se[g] = seG;
     mA += graphWeights[g] * meanI;
     mB += graphWeights[g] * meanJ;
@@ -193,8 +198,8 @@ export function contrast(
       estimate: mu[g],
       se: seG,
       monteCarloSe: causal ? mcSe : 0,
-      lower: causal ? lo : 0,
-      upper: causal ? hi : 0,
+      lower: causal || cc ? lo : 0,
+      upper: causal || cc ? hi : 0,
       meanArm: meanI,
       meanReference: meanJ,
       adjustment: check ? check.adjustment.names : [],

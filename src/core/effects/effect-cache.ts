@@ -126,6 +126,9 @@ export class EffectCache {
    * necessarily the most efficient, in the graph that reuses it — the price of fitting the
    * nuisance models once for many graphs (a bootstrap set's graphs differ in a few edges, so a
    * handful of sets usually serve all of them). Such entries say 'shared' as their kind.
+   * A graph without a directed path treatment ⇝ outcome is cross-checked too, adjusted for the
+   * treatment's parents (graph/adjustment.ts) or a shared set valid in it: the graph says the
+   * effect is zero, and the cross-check tests that against the data.
    */
   crossChecks(u: UnitOutcomes): CrossCheckEntry[] {
     const model = this.model;
@@ -140,10 +143,13 @@ export class EffectCache {
     const adjustments = this.adjustmentsFor(u.treatment, u.outcome);
     for (const g of order) {
       const own = adjustments[g];
-      if (!own.causalPath) {
-        out[g] = { adjustment: own, scores: null, note: `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero` };
+      const noPath = `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero`;
+      if (!own.causalPath && !own.valid) {
+        out[g] = { adjustment: own, scores: null, note: `${noPath} (no cross-check: "${model.names[u.outcome]}" is a parent of "${model.names[u.treatment]}")` };
         continue;
       }
+      // Without a path the graph says the effect is zero; the cross-check, adjusted for the
+      // treatment's parents (a valid set here), tests that claim against the data.
       let adj = own;
       if (own.valid) {
         const graph = graphAt(model, g);
@@ -157,7 +163,7 @@ export class EffectCache {
         s = computeScores(model, this.frame, u.treatment, u.outcome, u.outcomeLevel, u.arms, adj.names);
         this.scoreMemo.set(sKey, s);
       }
-      out[g] = { adjustment: adj, scores: s.scores, note: s.note };
+      out[g] = { adjustment: adj, scores: s.scores, note: own.causalPath ? s.note : s.note ? `${noPath}; ${s.note}` : noPath };
     }
     if (this.checks.size >= MAX_CACHED_CONTRASTS) {
       const oldest = this.checks.keys().next().value as string;

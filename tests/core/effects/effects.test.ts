@@ -170,6 +170,47 @@ describe('cross-check disagreement', () => {
     expect(est.lower).toBeLessThan(4);
     expect(est.upper).toBeGreaterThan(4);
   });
+
+  // W ~ N(0,1); T ~ Bernoulli(expit(W)); Y = β·T + W + N(0,1): ATE = β. The graph given omits T → Y.
+  function missingEdge(beta: number) {
+    const rng = Rng.create(8);
+    const n = 3000;
+    const w = new Float64Array(n), t = new Float64Array(n), y = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      w[i] = rng.normal();
+      t[i] = rng.uniform() < expit(w[i]) ? 1 : 0;
+      y[i] = beta * t[i] + w[i] + rng.normal();
+    }
+    const frame = makeFrame([cont('W', w), { name: 'T', kind: 'binary', values: t }, cont('Y', y)]);
+    const model = fitFixedGraph(frame, graphFromEdges(['W', 'T', 'Y'], [['W', 'T'], ['W', 'Y']]), { family: 'linear', seed: 8 });
+    return estimateEffect(new EffectCache(model), { treatment: 'T', outcome: 'Y', arm: 1, reference: 0 });
+  }
+
+  it('a graph that leaves out the edge the data show: its zero is cross-checked (adjusted for pa(T) = {W}), flagged, and the interval covers the analytic ATE 2', () => {
+    const est = missingEdge(2);
+    expect(est.pathProbability).toBe(0);
+    expect(est.estimate).toBe(0);
+    const g = est.perGraph[0];
+    expect(g.adjustment).toEqual(['W']);
+    expect(Math.abs(g.crossCheck!.estimate - 2)).toBeLessThan(3 * g.crossCheck!.se);
+    expect(g.crossCheck!.disagrees).toBe(true);
+    expect(est.disagreements).toEqual([0]);
+    expect(est.cautions.some((c) => /no directed path .* yet the cross-check/.test(c))).toBe(true);
+    expect(est.lower).toBeLessThan(2);
+    expect(est.upper).toBeGreaterThan(2);
+  });
+
+  it('…and when the data agree there is no effect (β = 0), the zero stands with a narrow interval and no flag', () => {
+    const est = missingEdge(0);
+    const g = est.perGraph[0];
+    expect(g.crossCheck!.disagrees).toBe(false);
+    expect(est.disagreements).toEqual([]);
+    expect(est.lower).toBeLessThanOrEqual(0);
+    expect(est.upper).toBeGreaterThanOrEqual(0);
+    // The cross-check's sampling error at n = 3000 is about 0.05: the interval stays within ±0.25.
+    expect(est.lower).toBeGreaterThan(-0.25);
+    expect(est.upper).toBeLessThan(0.25);
+  });
 });
 
 describe('uplift tables', () => {
