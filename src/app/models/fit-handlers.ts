@@ -100,7 +100,8 @@ export function registerFitHandlers(deps: FitHandlerDeps): void {
       }
       const concrete = learner as FitReplicateData['learner'];
       const unused = optionsFor(concrete, spec.learnerOptions).unused;
-      if (unused.length > 0) learnerNotes = [...learnerNotes, `auto: option(s) ${unused.join(', ')} belong to other learners than ${concrete} and were not used`];
+      // Under auto, options meant for the learners it did not pick; otherwise only a spec stored before options were checked.
+      if (unused.length > 0) learnerNotes = [...learnerNotes, `${spec.learner === 'auto' ? 'auto: ' : ''}option(s) ${unused.join(', ')} are not options of ${concrete} and were not used`];
       const children = Array.from({ length: spec.replicates }, (_, k) => ({
         name: FIT_JOB.replicate,
         data: { ...d, learner: concrete, replicateIndex: k } satisfies FitReplicateData,

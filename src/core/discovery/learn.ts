@@ -81,7 +81,7 @@ export function learn(frame: Frame, knowledge: Knowledge, options: LearnOptions)
   }
   const learner = getLearner(name);
   const { used, unused } = optionsFor(learner.name, learnerOptions);
-  if (unused.length > 0) notes.push(`auto: option(s) ${unused.join(', ')} belong to other learners than ${learner.name} and were not used`);
+  if (unused.length > 0) notes.push(`auto: option(s) ${unused.join(', ')} are not options of ${learner.name} and were not used`);
   const copies = copyOf && imputed.kept ? Int32Array.from(imputed.kept, (r) => copyOf[r]) : copyOf;
   const result = learner.learn(data, compiled, copies ? { ...used, copyOf: copies } : used, Rng.create(seedValue));
   checkResult(result, compiled);

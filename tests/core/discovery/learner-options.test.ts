@@ -63,6 +63,6 @@ describe('learner options', () => {
     expect(() => learn(frame, {}, { learner: 'pc', alpah: 0.05 })).toThrow(/unknown option "alpah"/);
     const res = learn(frame, {}, { learner: 'auto', seed: 1, candidates: 10, gamma: 1 });
     expect(res.learner).toBe('direct-lingam');
-    expect(res.notes).toContain('auto: option(s) candidates belong to other learners than direct-lingam and were not used');
+    expect(res.notes).toContain('auto: option(s) candidates are not options of direct-lingam and were not used');
   });
 });
