@@ -170,7 +170,8 @@ export function upliftTable(cache: EffectCache, q: UpliftQuery): UpliftTable {
 /**
  * Mean per-unit value of giving row r arm assign[r] (A = the reference): per graph, the
  * weighted mean of sign·(y_assign − y_ref) − cost, with se = max(Monte Carlo se, cross-check
- * se from the scores of the assigned arms), mixed over graphs.
+ * se from the scores of the assigned arms) widened by the gap between the two values (as for a
+ * contrast), mixed over graphs.
  */
 function assignmentValue(
   u: UnitOutcomes,
@@ -188,8 +189,8 @@ function assignmentValue(
   const R = weights.length;
   const mu = new Float64Array(G);
   const se = new Float64Array(G);
-  // Graphs sharing an adjustment set share its scores: their standard error is computed once.
-  const scoreSe = new Map<object, number>();
+  // Graphs sharing an adjustment set share its scores: their mean and standard error are computed once.
+  const scoreStats = new Map<object, { mean: number; se: number }>();
   for (let g = 0; g < G; g++) {
     const h = u.sameAs[g];
     if (h !== g && u.causalPath[h] === u.causalPath[g] && (checks ? checks[g].scores === checks[h].scores : true)) {
@@ -215,11 +216,10 @@ function assignmentValue(
       ss += weights[r] * weights[r] * v * v;
     }
     let seG = R > 1 ? Math.sqrt((ss * R) / (R - 1)) / sw : 0;
-    const sc = checks && u.causalPath[g] === 1 ? checks[g].scores : null;
-    const known = sc ? scoreSe.get(sc) : undefined;
-    if (known !== undefined) {
-      if (Number.isFinite(known)) seG = Math.max(seG, known);
-    } else if (sc) {
+    // A graph without a path is cross-checked too (effect-cache.ts): its sampling error counts like any graph's.
+    const sc = checks ? checks[g].scores : null;
+    let stats = sc ? scoreStats.get(sc) : undefined;
+    if (sc && stats === undefined) {
       let cw = 0;
       let cs = 0;
       const n = sc.n;
@@ -235,20 +235,23 @@ function assignmentValue(
         const v = sign * (sc.scores[a * n + k] - sc.scores[refIndex * n + k]) - armCost[a] - cm;
         css += sc.weights[k] * sc.weights[k] * v * v;
       }
-      const cse = n > 1 ? Math.sqrt((css * n) / (n - 1)) / cw : 0;
-      scoreSe.set(sc, cse);
-      if (Number.isFinite(cse)) seG = Math.max(seG, cse);
+      stats = { mean: cm, se: n > 1 ? Math.sqrt((css * n) / (n - 1)) / cw : 0 };
+      scoreStats.set(sc, stats);
     }
+    // No path: only costs differ between arms (m is then the mean cost, exactly).
     if (u.causalPath[g] !== 1) {
-      // No path: only costs differ between arms.
       let c = 0;
       for (let r = 0; r < R; r++) c += weights[r] * -armCost[assign[r]];
       mu[g] = c / sw;
-      se[g] = 0;
-    } else {
-      mu[g] = m;
-      se[g] = seG;
+      if (stats === undefined) seG = 0;
+    } else mu[g] = m;
+    if (stats !== undefined && Number.isFinite(stats.se)) {
+      // As for a contrast (contrast.ts): the larger sampling error, widened by the gap between
+      // the simulation's value and the cross-check's.
+      const sampling = Math.max(seG, stats.se);
+      seG = Math.sqrt(sampling * sampling + (mu[g] - stats.mean) ** 2);
     }
+    se[g] = seG;
   }
   const mix = mixtureInterval(mu, se, graphWeights, level);
   return { estimate: mix.estimate, lower: mix.lower, upper: mix.upper };

@@ -172,7 +172,7 @@ describe('cross-check disagreement', () => {
   });
 
   // W ~ N(0,1); T ~ Bernoulli(expit(W)); Y = β·T + W + N(0,1): ATE = β. The graph given omits T → Y.
-  function missingEdge(beta: number) {
+  function missingEdgeModel(beta: number) {
     const rng = Rng.create(8);
     const n = 3000;
     const w = new Float64Array(n), t = new Float64Array(n), y = new Float64Array(n);
@@ -183,8 +183,9 @@ describe('cross-check disagreement', () => {
     }
     const frame = makeFrame([cont('W', w), { name: 'T', kind: 'binary', values: t }, cont('Y', y)]);
     const model = fitFixedGraph(frame, graphFromEdges(['W', 'T', 'Y'], [['W', 'T'], ['W', 'Y']]), { family: 'linear', seed: 8 });
-    return estimateEffect(new EffectCache(model), { treatment: 'T', outcome: 'Y', arm: 1, reference: 0 });
+    return { cache: new EffectCache(model) };
   }
+  const missingEdge = (beta: number) => estimateEffect(missingEdgeModel(beta).cache, { treatment: 'T', outcome: 'Y', arm: 1, reference: 0 });
 
   it('a graph that leaves out the edge the data show: its zero is cross-checked (adjusted for pa(T) = {W}), flagged, and the interval covers the analytic ATE 2', () => {
     const est = missingEdge(2);
@@ -198,6 +199,15 @@ describe('cross-check disagreement', () => {
     expect(est.cautions.some((c) => /no directed path .* yet the cross-check/.test(c))).toBe(true);
     expect(est.lower).toBeLessThan(2);
     expect(est.upper).toBeGreaterThan(2);
+  });
+
+  it('the uplift table’s treat-all value on that graph (0 by the graph, 2 in truth) is widened the same way and covers 2', () => {
+    const { cache } = missingEdgeModel(2);
+    const table = upliftTable(cache, { treatment: 'T', outcome: 'Y', arms: [1], reference: 0, by: { variable: 'W', bins: 3 }, better: 'higher' });
+    const all = table.treatAll.find((v) => v.arm === '1')!;
+    expect(all.estimate).toBe(0);
+    expect(all.lower).toBeLessThan(2);
+    expect(all.upper).toBeGreaterThan(2);
   });
 
   it('…and when the data agree there is no effect (β = 0), the zero stands with a narrow interval and no flag', () => {
