@@ -42,6 +42,12 @@ export const MODEL_ERRORS = {
     title: 'Learner option not accepted',
     template: 'learnerOptions: {reason}.',
   },
+  ERR_MODEL_TREATMENT_ONE_VALUE: {
+    status: 400,
+    title: 'Treatment takes one value',
+    template:
+      'The treatment "{variable}" takes one value ({value}) in all {rows} rows of the dataset: an effect compares arms the data show, so it needs at least two. Choose a treatment that varies, or append rows where it does.',
+  },
   ERR_MODEL_KNOWLEDGE: {
     status: 400,
     title: 'Contradictory knowledge',

@@ -13,6 +13,7 @@ announceBackends('model-errors');
 describe.each(backends())('model spec refusals on %s', (backend) => {
   let t: TestApp;
   let datasetId: string;
+  let oneProgrammeId: string;
   const get = (url: string) => t.app.inject({ method: 'GET', url, headers: bearer(t.a.adminKey) });
   const create = (spec: Record<string, unknown>) =>
     t.app.inject({ method: 'POST', url: '/v1/models', headers: bearer(t.a.adminKey), payload: { name: 'refused', datasetId, ...spec } } as InjectOptions);
@@ -27,6 +28,13 @@ describe.each(backends())('model spec refusals on %s', (backend) => {
     });
     expect(ds.statusCode).toBe(201);
     datasetId = ds.json().dataset.id as string;
+    // The same households, every one of them on programme "none".
+    const lines = scenarioCsv(generateScenario(120, 3)).trim().split('\n');
+    const col = lines[0].split(',').indexOf('programme');
+    const one = [lines[0], ...lines.slice(1).map((l) => l.split(',').map((v, k) => (k === col ? 'none' : v)).join(','))].join('\n') + '\n';
+    const ds1 = await t.app.inject({ method: 'POST', url: '/v1/datasets?name=one-programme', headers: { ...bearer(t.a.adminKey), 'content-type': 'text/csv' }, payload: one });
+    expect(ds1.statusCode).toBe(201);
+    oneProgrammeId = ds1.json().dataset.id as string;
   });
   afterAll(async () => {
     await t?.close();
@@ -55,8 +63,9 @@ describe.each(backends())('model spec refusals on %s', (backend) => {
     ['a number sent as text', { learner: 'pc', learnerOptions: { alpha: '0.05' } }, 'ERR_MODEL_LEARNER_OPTIONS', /pc: option "alpha" must be a number, got "0.05"/],
     ['a value the learner refuses', { learner: 'auto', learnerOptions: { alpha: 2 } }, 'ERR_MODEL_LEARNER_OPTIONS', /alpha must lie in \(0, 1\), got 2/],
     ['the seed among the options', { learnerOptions: { seed: 3 } }, 'ERR_MODEL_LEARNER_OPTIONS', /the seed is set on its own/],
+    ['a treatment that takes one value', { datasetId: '$oneProgramme', treatment: 'programme', outcome: 'winter_kwh' }, 'ERR_MODEL_TREATMENT_ONE_VALUE', /"programme" takes one value \(none\) in all 120 rows/],
   ])('refuses %s with 400, naming what to change, and writes nothing', async (_what, spec, code, message) => {
-    const res = await create(spec);
+    const res = await create('datasetId' in spec ? { ...spec, datasetId: oneProgrammeId } : spec);
     expect(res.statusCode).toBe(400);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
     expect(res.json().type).toBe(code);

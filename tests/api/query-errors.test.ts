@@ -50,6 +50,7 @@ describe.each(backends())('effect query errors on %s', (backend) => {
   it.each([
     ['an unknown variable', { treatment: 'tariff' }, 400, 'ERR_QUERY_UNKNOWN_VARIABLE', /tariff/],
     ['an unknown arm', { arm: 'free_heat_pump' }, 400, 'ERR_QUERY_UNKNOWN_ARM', /free_heat_pump/],
+    ['the reference as the arm', { arm: 'none', reference: 'none' }, 400, 'ERR_QUERY_INVALID', /arm and reference are the same \(none\)/],
     ['a shift of a categorical treatment', { arm: { shift: 1 } }, 400, 'ERR_QUERY_INVALID', /can be set, not shifted/],
     ['a categorical outcome without a level', { outcome: 'heating', treatment: 'region', arm: 'coast', reference: 'valley' }, 400, 'ERR_QUERY_INVALID', /name the level/],
     [

@@ -16,6 +16,7 @@ import { modelError } from '../../errors/model-errors.js';
 import type { QueuePort } from '../../jobs/queue-port.js';
 import type { Db } from '../../store/db.js';
 import type { DatasetsRepository } from '../../store/datasets-repository.js';
+import type { ColumnSchema } from '../../store/dataset-types.js';
 import type { JobsRepository, JobRow, JobTrigger } from '../../store/jobs-repository.js';
 import type { ModelRow, ModelsRepository } from '../../store/models-repository.js';
 import { FIT_ATTEMPTS, FIT_BACKOFF_MS, FIT_JOB, fitQueueIds, type FitStartData } from './fit-job-data.js';
@@ -56,6 +57,10 @@ export async function resolveSpec(deps: ModelsDeps, workspaceId: string, input: 
   if (input.treatment) check('treatment', input.treatment, chosen, spec_, variables);
   if (input.outcome) check('outcome', input.outcome, chosen, spec_, variables);
   for (const v of Object.keys(input.mechanisms?.perNode ?? {})) check('mechanisms.perNode', v, chosen, spec_, variables);
+  if (input.treatment) {
+    const one = await singleValue(deps, ds.id, schema.find((c) => c.name === input.treatment)!);
+    if (one !== null) throw modelError('ERR_MODEL_TREATMENT_ONE_VALUE', { variable: input.treatment, value: one, rows: ds.rowCount });
+  }
   if (input.treatment && input.treatment === input.outcome) {
     throw modelError('ERR_QUERY_INVALID', { reason: 'treatment and outcome are the same variable; choose two different variables.' });
   }
@@ -153,4 +158,24 @@ export async function createModel(deps: ModelsDeps, workspaceId: string, input: 
 export async function refitModel(deps: ModelsDeps, model: ModelRow, trigger: JobTrigger): Promise<JobRow> {
   const fit = await deps.db.transaction((tx) => recordFit(deps, model, trigger, tx));
   return enqueueFit(deps, fit, () => deps.jobs.remove(fit.jobId));
+}
+
+/**
+ * The one value a column takes over all the dataset's batches (from the stored batch
+ * statistics: level counts, or the continuous range), or null when it takes two or more.
+ */
+async function singleValue(deps: ModelsDeps, datasetId: string, column: ColumnSchema): Promise<string | null> {
+  const seen = new Set<string>();
+  let min = Infinity;
+  let max = -Infinity;
+  for (const b of await deps.datasets.batches(datasetId)) {
+    const st = b.stats[column.sqlColumn];
+    if (!st) continue;
+    if (st.kind === 'continuous') {
+      if (st.min !== null) min = Math.min(min, st.min);
+      if (st.max !== null) max = Math.max(max, st.max);
+    } else for (const [level, count] of Object.entries(st.counts)) if (count > 0) seen.add(level);
+  }
+  if (column.kind === 'continuous') return min === max ? String(min) : null;
+  return seen.size === 1 ? [...seen][0] : null;
 }

@@ -9,7 +9,7 @@
 import type { InterventionValue } from '../scm/intervention.js';
 import { QueryRefusalError } from '../scm/query-refusal.js';
 import type { Arm } from './arms.js';
-import { armLabel } from './arms.js';
+import { armKey, armLabel } from './arms.js';
 import { queryCautions } from './cautions.js';
 import type { ContrastSummary, GraphBreakdown } from './contrast.js';
 import { contrast } from './contrast.js';
@@ -65,6 +65,9 @@ export function estimateEffect(cache: EffectCache, q: EffectQuery): EffectEstima
   const model = cache.model;
   const level = q.level ?? 0.9;
   if (!(level > 0 && level < 1)) throw new QueryRefusalError(`level must be in (0, 1), got ${level}`);
+  if (armKey(q.arm) === armKey(q.reference)) {
+    throw new QueryRefusalError(`arm and reference are the same (${armLabel(q.arm)}): an effect compares two different arms of "${q.treatment}"`);
+  }
   const u = cache.outcomes(q.treatment, q.outcome, [q.arm, q.reference], q.outcomeLevel);
   const seg = q.segment ? resolveSegment(model, u.treatment, q.segment) : null;
   if (seg && seg.count === 0) throw new QueryRefusalError(`segment "${seg.name}" contains no reference rows`);
