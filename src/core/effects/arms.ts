@@ -51,6 +51,22 @@ export function armLabel(arm: Arm): string {
   return 'policy';
 }
 
+/**
+ * `code` when a discrete treatment t takes it in some reference row; else an InterventionError:
+ * no unit in the data was under that arm, so its outcomes would be extrapolated from nothing
+ * (a level declared but never seen). A continuous treatment's values pass: how far a set value
+ * lies from the data is for the cautions.
+ */
+function observedCode(model: CompiledModel, t: number, code: number): number {
+  if (model.kinds[t] === KIND_CONTINUOUS) return code;
+  const R = model.nReference;
+  const col = model.referenceValues.subarray(t * R, (t + 1) * R);
+  if (col.includes(code)) return code;
+  const seen = [...new Set(col)].sort((a, b) => a - b).map((c) => model.levels[t]?.[c] ?? String(c));
+  const label = model.levels[t]?.[code] ?? String(code);
+  throw new InterventionError(`no row of the data has "${model.names[t]}" = ${label}, so there is nothing to estimate that arm from; compare arms the data contain (${seen.join(', ')})`);
+}
+
 /** Resolve an arm on treatment variable t (throws InterventionError on bad values). */
 export function resolveArm(model: CompiledModel, t: number, arm: Arm): ResolvedArm {
   const base = { label: armLabel(arm), rules: [] as ResolvedRule[], otherwise: NaN, reads: [] as number[] };
@@ -59,8 +75,8 @@ export function resolveArm(model: CompiledModel, t: number, arm: Arm): ResolvedA
     const lv = model.levels[t];
     if (!(lv && lv.includes('observe'))) return { ...base, action: ARM_OBSERVE, amount: NaN };
   }
-  if (typeof arm !== 'object') return { ...base, action: ARM_SET, amount: valueCode(model, t, arm) };
-  if ('set' in arm) return { ...base, action: ARM_SET, amount: valueCode(model, t, arm.set) };
+  if (typeof arm !== 'object') return { ...base, action: ARM_SET, amount: observedCode(model, t, valueCode(model, t, arm)) };
+  if ('set' in arm) return { ...base, action: ARM_SET, amount: observedCode(model, t, valueCode(model, t, arm.set)) };
   if ('shift' in arm || 'percent' in arm) {
     if (model.kinds[t] !== KIND_CONTINUOUS) throw new InterventionError(`treatment "${model.names[t]}" is not continuous: it can be set, not shifted`);
     if ('shift' in arm) {

@@ -98,3 +98,28 @@ describe('arms: policy, shift, categorical outcome', () => {
     expect(() => estimateEffect(cache, { treatment: 'T', outcome: 'C', arm: 1, reference: 0 })).toThrow(/categorical/);
   });
 });
+
+describe('arms the data do not contain', () => {
+  // T declared with levels a, b, c; only a and b occur. Y = 1 + 2·[T = b] + N(0, 1).
+  function model() {
+    const rng = Rng.create(12);
+    const n = 400;
+    const t = new Float64Array(n), y = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      t[i] = i % 2;
+      y[i] = 1 + 2 * t[i] + rng.normal();
+    }
+    const frame = makeFrame([
+      { name: 'T', kind: 'categorical', values: t, levels: ['a', 'b', 'c'] },
+      { name: 'Y', kind: 'continuous', values: y },
+    ]);
+    return fitFixedGraph(frame, graphFromEdges(['T', 'Y'], [['T', 'Y']]), { family: 'linear', seed: 12 });
+  }
+
+  it('a declared level no row takes is refused, naming the levels there are; the observed ones answer (effect 2)', () => {
+    const cache = new EffectCache(model());
+    expect(() => estimateEffect(cache, { treatment: 'T', outcome: 'Y', arm: 'c', reference: 'a' })).toThrow(/no row of the data has "T" = c.*\(a, b\)/);
+    const est = estimateEffect(cache, { treatment: 'T', outcome: 'Y', arm: 'b', reference: 'a' });
+    expect(Math.abs(est.estimate - 2)).toBeLessThan(0.3);
+  });
+});
