@@ -5,7 +5,7 @@
  */
 import type { InjectOptions } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { generateScenario, scenarioCsv } from '../../src/demo/scenario.js';
+import { uploadScenario } from './helpers/scenario-model.js';
 import { announceBackends, backends, bearer, startTestApp, type TestApp } from './helpers/test-app.js';
 
 announceBackends('model-errors');
@@ -20,21 +20,14 @@ describe.each(backends())('model spec refusals on %s', (backend) => {
 
   beforeAll(async () => {
     t = await startTestApp(backend);
-    const ds = await t.app.inject({
-      method: 'POST',
-      url: '/v1/datasets?name=households',
-      headers: { ...bearer(t.a.adminKey), 'content-type': 'text/csv' },
-      payload: scenarioCsv(generateScenario(120, 3)),
-    });
-    expect(ds.statusCode).toBe(201);
-    datasetId = ds.json().dataset.id as string;
+    datasetId = await uploadScenario(t, t.a, { name: 'households', rows: 120, seed: 3 });
     // The same households, every one of them on programme "none".
-    const lines = scenarioCsv(generateScenario(120, 3)).trim().split('\n');
-    const col = lines[0].split(',').indexOf('programme');
-    const one = [lines[0], ...lines.slice(1).map((l) => l.split(',').map((v, k) => (k === col ? 'none' : v)).join(','))].join('\n') + '\n';
-    const ds1 = await t.app.inject({ method: 'POST', url: '/v1/datasets?name=one-programme', headers: { ...bearer(t.a.adminKey), 'content-type': 'text/csv' }, payload: one });
-    expect(ds1.statusCode).toBe(201);
-    oneProgrammeId = ds1.json().dataset.id as string;
+    const allNone = (csv: string) => {
+      const lines = csv.trim().split('\n');
+      const col = lines[0].split(',').indexOf('programme');
+      return [lines[0], ...lines.slice(1).map((l) => l.split(',').map((v, k) => (k === col ? 'none' : v)).join(','))].join('\n') + '\n';
+    };
+    oneProgrammeId = await uploadScenario(t, t.a, { name: 'one-programme', rows: 120, seed: 3, edit: allNone });
   });
   afterAll(async () => {
     await t?.close();

@@ -4,7 +4,7 @@
  */
 import type { InjectOptions } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { generateScenario, scenarioCsv } from '../../src/demo/scenario.js';
+import { uploadScenario } from './helpers/scenario-model.js';
 import { announceBackends, backends, bearer, startTestApp, type TestApp } from './helpers/test-app.js';
 
 announceBackends('schedule');
@@ -22,18 +22,12 @@ describe.each(backends())('refit schedule on %s', (backend) => {
 
   beforeAll(async () => {
     t = await startTestApp(backend);
-    const ds = await t.app.inject({
-      method: 'POST',
-      url: '/v1/datasets?name=households',
-      headers: { ...bearer(t.a.adminKey), 'content-type': 'text/csv' },
-      payload: scenarioCsv(generateScenario(120, 3)),
-    });
-    expect(ds.statusCode).toBe(201);
+    const datasetId = await uploadScenario(t, t.a, { name: 'households', rows: 120, seed: 3 });
     const m = await t.app.inject({
       method: 'POST',
       url: '/v1/models',
       headers: bearer(t.a.adminKey),
-      payload: { name: 'scheduled', datasetId: ds.json().dataset.id, fixedGraph: { edges: [['programme', 'winter_kwh']] }, variables: ['programme', 'winter_kwh'] },
+      payload: { name: 'scheduled', datasetId, fixedGraph: { edges: [['programme', 'winter_kwh']] }, variables: ['programme', 'winter_kwh'] },
     });
     expect(m.statusCode).toBe(202);
     modelId = m.json().model.id;

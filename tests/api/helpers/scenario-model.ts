@@ -14,15 +14,21 @@ export interface ScenarioModel {
   jobId: string;
 }
 
-export async function fitScenarioModel(t: TestApp, ws: TestWorkspace, opts: { name: string; rows: number; seed: number }): Promise<ScenarioModel> {
+/** Uploads `rows` households of the demo scenario (seed `seed`) as a CSV dataset, optionally edited first; returns its id. */
+export async function uploadScenario(t: TestApp, ws: TestWorkspace, opts: { name: string; rows: number; seed: number; edit?: (csv: string) => string }): Promise<string> {
+  const csv = scenarioCsv(generateScenario(opts.rows, opts.seed));
   const ds = await t.app.inject({
     method: 'POST',
     url: `/v1/datasets?name=${encodeURIComponent(opts.name)}`,
     headers: { ...bearer(ws.adminKey), 'content-type': 'text/csv' },
-    payload: scenarioCsv(generateScenario(opts.rows, opts.seed)),
+    payload: opts.edit ? opts.edit(csv) : csv,
   });
   expect(ds.statusCode).toBe(201);
-  const datasetId = ds.json().dataset.id as string;
+  return ds.json().dataset.id as string;
+}
+
+export async function fitScenarioModel(t: TestApp, ws: TestWorkspace, opts: { name: string; rows: number; seed: number }): Promise<ScenarioModel> {
+  const datasetId = await uploadScenario(t, ws, opts);
   const model = await t.app.inject({
     method: 'POST',
     url: '/v1/models',
