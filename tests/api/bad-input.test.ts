@@ -75,6 +75,11 @@ describe.each(backends())('bad input on %s', (backend) => {
     headers: { ...bearer(key ?? t.a.adminKey), 'content-type': 'text/csv' },
     payload: text,
   });
+  /** A multipart dataset upload (multipartBody's arguments). */
+  const multipart = (...args: Parameters<typeof multipartBody>) => () => {
+    const mp = multipartBody(...args);
+    return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
+  };
   const append = (text: string) => () => ({
     method: 'POST' as const,
     url: `/v1/datasets/${seedId}/batches`,
@@ -127,29 +132,20 @@ describe.each(backends())('bad input on %s', (backend) => {
     },
     {
       name: 'a multipart file over the upload limit',
-      request: () => {
-        const mp = multipartBody(manyRows(UPLOAD_LIMIT + 1000), { name: 'big' });
-        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
-      },
+      request: multipart(manyRows(UPLOAD_LIMIT + 1000), { name: 'big' }),
       status: 413,
       type: 'ERR_REQUEST_BODY_TOO_LARGE',
     },
     {
       name: 'a ragged row in a multipart file',
-      request: () => {
-        const mp = multipartBody('a,b\n1,2\n3\n', { name: 'mp' });
-        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
-      },
+      request: multipart('a,b\n1,2\n3\n', { name: 'mp' }),
       status: 400,
       type: 'ERR_DATA_RAGGED_ROW',
       mentions: ['Row 2'],
     },
     {
       name: 'multipart fields after the file (a small body, read in one piece)',
-      request: () => {
-        const mp = multipartBody(HOUSEHOLDS_CSV, { name: 'late', kinds: 'occupants:categorical' }, true);
-        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
-      },
+      request: multipart(HOUSEHOLDS_CSV, { name: 'late', kinds: 'occupants:categorical' }, true),
       status: 400,
       type: 'ERR_REQUEST_MULTIPART_FIELD_AFTER_FILE',
       mentions: ['"name", "kinds"', 'before the file'],
@@ -168,20 +164,14 @@ describe.each(backends())('bad input on %s', (backend) => {
     },
     {
       name: 'an unknown multipart field (kind for kinds)',
-      request: () => {
-        const mp = multipartBody(HOUSEHOLDS_CSV, { name: 'mp', kind: 'occupants:categorical' });
-        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
-      },
+      request: multipart(HOUSEHOLDS_CSV, { name: 'mp', kind: 'occupants:categorical' }),
       status: 400,
       type: 'ERR_REQUEST_VALIDATION',
       mentions: ['form field "kind"', 'send only name, kinds, schema'],
     },
     {
       name: 'a multipart kinds field with an unknown kind',
-      request: () => {
-        const mp = multipartBody(HOUSEHOLDS_CSV, { name: 'mp', kinds: 'occupants:ordinal' });
-        return { method: 'POST' as const, url: '/v1/datasets', headers: { ...bearer(t.a.adminKey), 'content-type': mp.contentType }, payload: mp.payload };
-      },
+      request: multipart(HOUSEHOLDS_CSV, { name: 'mp', kinds: 'occupants:ordinal' }),
       status: 400,
       type: 'ERR_REQUEST_VALIDATION',
       mentions: ['form field "kinds"'],

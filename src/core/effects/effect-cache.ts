@@ -143,7 +143,7 @@ export class EffectCache {
     const adjustments = this.adjustmentsFor(u.treatment, u.outcome);
     for (const g of order) {
       const own = adjustments[g];
-      const noPath = `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero`;
+      const noPath = own.causalPath ? '' : `no directed path from "${model.names[u.treatment]}" to "${model.names[u.outcome]}" in this graph: the effect is zero`;
       if (!own.causalPath && !own.valid) {
         out[g] = { adjustment: own, scores: null, note: `${noPath} (no cross-check: "${model.names[u.outcome]}" is a parent of "${model.names[u.treatment]}")` };
         continue;

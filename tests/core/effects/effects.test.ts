@@ -146,19 +146,23 @@ describe('segments and the graph set', () => {
 });
 
 describe('cross-check disagreement', () => {
-  it('misspecified linear mechanisms (effect 1 + 3W² fitted as additive): the AIPW cross-check disagrees, the flag and caution fire, and the widened interval still covers the analytic ATE 4', () => {
-    // W ~ N(0,1); T ~ Bernoulli(expit(W)); Y = T(1 + 3W²) + W + N(0,1). ATE = 1 + 3·E[W²] = 4.
-    // An additive linear model weights the conditional effects by Var(T | W), mostly near W = 0,
-    // so the simulation lands near 3; AIPW with the correct logistic propensity stays near 4.
-    const rng = Rng.create(2);
-    const n = 6000;
+  /** W ~ N(0, 1); T ~ Bernoulli(expit(W)); Y = mean(T, W) + N(0, 1). */
+  function confounded(n: number, seed: number, mean: (t: number, w: number) => number) {
+    const rng = Rng.create(seed);
     const w = new Float64Array(n), t = new Float64Array(n), y = new Float64Array(n);
     for (let i = 0; i < n; i++) {
       w[i] = rng.normal();
       t[i] = rng.uniform() < expit(w[i]) ? 1 : 0;
-      y[i] = t[i] * (1 + 3 * w[i] * w[i]) + w[i] + rng.normal();
+      y[i] = mean(t[i], w[i]) + rng.normal();
     }
-    const frame = makeFrame([cont('W', w), { name: 'T', kind: 'binary', values: t }, cont('Y', y)]);
+    return makeFrame([cont('W', w), { name: 'T', kind: 'binary', values: t }, cont('Y', y)]);
+  }
+
+  it('misspecified linear mechanisms (effect 1 + 3W² fitted as additive): the AIPW cross-check disagrees, the flag and caution fire, and the widened interval still covers the analytic ATE 4', () => {
+    // W ~ N(0,1); T ~ Bernoulli(expit(W)); Y = T(1 + 3W²) + W + N(0,1). ATE = 1 + 3·E[W²] = 4.
+    // An additive linear model weights the conditional effects by Var(T | W), mostly near W = 0,
+    // so the simulation lands near 3; AIPW with the correct logistic propensity stays near 4.
+    const frame = confounded(6000, 2, (t, w) => t * (1 + 3 * w * w) + w);
     const model = fitFixedGraph(frame, graphFromEdges(['W', 'T', 'Y'], [['W', 'T'], ['W', 'Y'], ['T', 'Y']]), { family: 'linear', seed: 2 });
     const est = estimateEffect(new EffectCache(model), { treatment: 'T', outcome: 'Y', arm: 1, reference: 0 });
     const cc = est.perGraph[0].crossCheck!;
@@ -173,15 +177,7 @@ describe('cross-check disagreement', () => {
 
   // W ~ N(0,1); T ~ Bernoulli(expit(W)); Y = β·T + W + N(0,1): ATE = β. The graph given omits T → Y.
   function missingEdgeModel(beta: number) {
-    const rng = Rng.create(8);
-    const n = 3000;
-    const w = new Float64Array(n), t = new Float64Array(n), y = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      w[i] = rng.normal();
-      t[i] = rng.uniform() < expit(w[i]) ? 1 : 0;
-      y[i] = beta * t[i] + w[i] + rng.normal();
-    }
-    const frame = makeFrame([cont('W', w), { name: 'T', kind: 'binary', values: t }, cont('Y', y)]);
+    const frame = confounded(3000, 8, (t, w) => beta * t + w);
     const model = fitFixedGraph(frame, graphFromEdges(['W', 'T', 'Y'], [['W', 'T'], ['W', 'Y']]), { family: 'linear', seed: 8 });
     return { cache: new EffectCache(model) };
   }
